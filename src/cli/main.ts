@@ -1,0 +1,40 @@
+import { Command, CommanderError } from 'commander';
+import { UserError } from '../util/errors.js';
+import { registerChart } from './chart-command.js';
+import type { CommandIo } from './io.js';
+import { registerPresetCommands } from './preset-commands.js';
+
+const VERSION = '0.1.0';
+
+export function buildProgram(io: CommandIo): Command {
+  const program = new Command('diesis')
+    .description('spell each key the way the music means it and sound it in tune: meantone, Pythagorean, just and well temperaments over MIDI')
+    .version(VERSION)
+    .exitOverride()
+    .configureOutput({
+      writeOut: (s) => io.stdout.write(s),
+      writeErr: (s) => io.stderr.write(s),
+      outputError: (s, write) => write(`diesis: ${s.replace(/^error: /u, '').trim()}\n`),
+    });
+  registerChart(program, io);
+  registerPresetCommands(program, io);
+  for (const command of program.commands) command.exitOverride().configureOutput(program.configureOutput());
+  return program;
+}
+
+/** Runs the CLI; resolves to the process exit code. A UserError prints as one line. */
+export async function main(argv: readonly string[], io: CommandIo = { stdout: process.stdout, stderr: process.stderr }): Promise<number> {
+  const program = buildProgram(io);
+  try {
+    await program.parseAsync([...argv]);
+    return 0;
+  } catch (error) {
+    if (error instanceof CommanderError) return error.exitCode === 1 ? 2 : error.exitCode;
+    const cause = error instanceof CommanderError ? undefined : error;
+    if (cause instanceof UserError) {
+      io.stderr.write(`diesis: ${cause.message}\n`);
+      return cause.exitCode;
+    }
+    throw error;
+  }
+}
