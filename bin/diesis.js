@@ -1,7 +1,7 @@
 #!/usr/bin/env node
 // Entry point of the `diesis` command: the compiled CLI lives in dist/ (built by `npm run build`,
 // which `npm ci` runs through the `prepare` script).
-import { main } from '../dist/cli/main.js';
+import { main } from '../dist/src/cli/main.js';
 
 // A reader that stops early (`diesis presets | head`) is not an error.
 for (const stream of [process.stdout, process.stderr]) {

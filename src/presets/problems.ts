@@ -21,7 +21,8 @@ export function collecting<T>(problems: Problem[], path: string, fn: () => T): T
     return fn();
   } catch (error) {
     if (error instanceof UserError) {
-      problems.push({ path, message: error.message });
+      const message = error.message.startsWith(`${path}: `) ? error.message.slice(path.length + 2) : error.message;
+      problems.push({ path, message });
       return undefined;
     }
     throw error;

@@ -1,5 +1,5 @@
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
-import { basename, join, resolve } from 'node:path';
+import { basename, dirname, join, resolve, sep } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromaOf, formatPitchClass, parsePitchClass, pitchClass, type PitchClass } from '../pitch/index.js';
 import {
@@ -33,8 +33,19 @@ export interface TuningPreset {
   readonly tuning: Tuning;
 }
 
-/** The folder of built-in presets (the same from src/ under the tests and from dist/). */
-export const PRESETS_DIR = fileURLToPath(new URL('../../presets/', import.meta.url));
+/** The package's own folder: the nearest ancestor of this module holding package.json (src/ under the tests, dist/ when built). */
+function packageRoot(): string {
+  let dir = dirname(fileURLToPath(import.meta.url));
+  while (!existsSync(join(dir, 'package.json'))) {
+    const parent = dirname(dir);
+    if (parent === dir) throw new Error('diesis: cannot find the package folder');
+    dir = parent;
+  }
+  return dir;
+}
+
+/** The folder of built-in presets. */
+export const PRESETS_DIR = join(packageRoot(), 'presets') + sep;
 
 const pc = (problems: Problem[], path: string, text: string | undefined, fallback: PitchClass): PitchClass =>
   text === undefined ? fallback : (collecting(problems, path, () => parsePitchClass(text, 'pitch class')) ?? fallback);
@@ -52,10 +63,11 @@ function buildTuning(json: TuningPresetJson, problems: Problem[]): Tuning | unde
       const degrees = new Map<number, PitchRatio>();
       for (const [name, ratioText] of Object.entries(json.degrees)) {
         const path = `$.degrees.${name}`;
-        const degree = pc(problems, path, name, c);
+        const degree = collecting(problems, path, () => parsePitchClass(name, 'pitch class'));
         const size = collecting(problems, path, () => intervalFromSpec({ ratio: ratioText }, path));
+        if (!degree || !size) continue;
         if (degrees.has(degree.fifths)) problems.push({ path, message: `${name} is listed twice` });
-        if (size) degrees.set(degree.fifths, size);
+        degrees.set(degree.fifths, size);
       }
       if (!degrees.has(0)) {
         problems.push({ path: '$.degrees', message: 'must list the tonic, written C (degrees are spelled as intervals above C)' });

@@ -60,8 +60,12 @@ export interface IntervalAnalysis {
   readonly pure: PureTarget;
   /** Size minus the pure size, in cents (positive: wider than pure). */
   readonly deviation: number;
-  /** Beats per second between the coinciding partials: |q·f₂ − p·f₁|. */
+  /** Beats per second between the coinciding partials: |q·f₂ − p·f₁| with p/q in lowest terms. */
   readonly beats: number;
+}
+
+function gcd(a: number, b: number): number {
+  return b === 0 ? a : gcd(b, a % b);
 }
 
 /**
@@ -71,8 +75,11 @@ export interface IntervalAnalysis {
 export function analyseInterval(lowerHz: number, upperHz: number, target?: PureTarget): IntervalAnalysis {
   const size = 1200 * Math.log2(upperHz / lowerHz);
   const pureTarget = target ?? nearestPure(size);
-  const p = pureTarget.interval.p * 2 ** Math.max(0, pureTarget.octaves);
-  const q = pureTarget.interval.q * 2 ** Math.max(0, -pureTarget.octaves);
+  const up = pureTarget.interval.p * 2 ** Math.max(0, pureTarget.octaves);
+  const down = pureTarget.interval.q * 2 ** Math.max(0, -pureTarget.octaves);
+  const common = gcd(up, down);
+  const p = up / common;
+  const q = down / common;
   return {
     cents: size,
     pure: pureTarget,

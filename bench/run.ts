@@ -1,0 +1,5 @@
+// Prints the project's figures; nothing here is asserted (tests assert behaviour, not time).
+import { benchTuning } from './tuning.js';
+
+process.stdout.write(`diesis benchmarks · node ${process.version} · ${new Date().toISOString()}\n`);
+benchTuning();
