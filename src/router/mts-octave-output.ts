@@ -1,0 +1,96 @@
+import { bendSensitivity, pitchBend } from '../midi/bytes.js';
+import { quantiseScaleOctave, scaleOctaveLimits, scaleOctaveTuning, type ScaleOctaveForm } from '../midi/mts.js';
+import { BEND_CENTRE } from '../midi/pitch-bend.js';
+import { chromaOf, keyOf, rangeClasses, type KeyboardWindow } from '../pitch/index.js';
+import { mod } from '../util/errors.js';
+import type { Emit, OutputCounters, OutputStrategy, PlaceContext, Placement } from './output.js';
+import type { PitchTable, TunedNote } from './pitch-table.js';
+
+export interface MtsOctaveOutputSetup {
+  readonly channel: number;
+  readonly device: number;
+  readonly form: ScaleOctaveForm;
+  readonly wheelRange: number;
+  readonly sendBendRange: boolean;
+}
+
+/**
+ * MIDI Tuning Standard scale/octave tuning: one offset per key class, repeated in every octave,
+ * for synths that take only 12-class tuning. The table follows the spellings in use: when a new
+ * note needs its key class retuned (A♭ where G♯ was), the whole table is sent again before it.
+ * Limit: a held note of that key class moves with it; the offsets are limited to −64…+63 cents
+ * (1-byte form) or ±100 cents (2-byte form), so all keys are moved by one common shift chosen at
+ * start from the reference pitch.
+ */
+export class MtsOctaveOutput implements OutputStrategy {
+  readonly mode = 'mts-octave';
+  readonly counters: OutputCounters = { retunes: 0, steals: 0 };
+  readonly zoneChannels: readonly number[];
+  readonly allChannels: readonly number[];
+  private readonly offsets: number[] = new Array<number>(12).fill(0);
+  private readonly shift: number;
+  private used = false;
+
+  constructor(
+    private readonly setup: MtsOctaveOutputSetup,
+    private readonly table: PitchTable,
+    private readonly window: KeyboardWindow,
+  ) {
+    this.zoneChannels = [setup.channel];
+    this.allChannels = [setup.channel];
+    const classes = rangeClasses(window);
+    const mean = classes.reduce((sum, pc) => sum + table.offsetOf(pc).cents, 0) / classes.length;
+    this.shift = Math.round(mean / 100);
+  }
+
+  private send(emit: Emit): void {
+    this.counters.retunes++;
+    emit(scaleOctaveTuning(this.setup.device, [this.setup.channel], this.offsets, this.setup.form));
+  }
+
+  /** Offset the key class `chroma` needs for a pitch class with `cents` from its own key. */
+  private fit(cents: number): { value: number; clamped: boolean } {
+    const wanted = cents - 100 * this.shift;
+    const { lowest, highest } = scaleOctaveLimits(this.setup.form);
+    return { value: quantiseScaleOctave(Math.max(lowest, Math.min(highest, wanted)), this.setup.form), clamped: wanted < lowest || wanted > highest };
+  }
+
+  start(emit: Emit): void {
+    if (this.setup.sendBendRange) for (const m of bendSensitivity(this.setup.channel, this.setup.wheelRange)) emit(m);
+    emit(pitchBend(this.setup.channel, BEND_CENTRE));
+    for (const pc of rangeClasses(this.window)) this.offsets[mod(chromaOf(pc) + this.shift, 12)] = this.fit(this.table.offsetOf(pc).cents).value;
+    this.send(emit);
+  }
+
+  place(note: TunedNote, _time: number, context: PlaceContext): Placement | undefined {
+    const key = keyOf(note.pitch) + this.shift;
+    if (key < 0 || key > 127) return undefined;
+    const { value, clamped } = this.fit(note.offset.cents);
+    if (clamped) context.outOfRange(note, note.offset.cents - 100 * this.shift);
+    const slot = mod(key, 12);
+    if (this.offsets[slot] !== value) {
+      this.offsets[slot] = value;
+      this.send(context.emit);
+    }
+    this.used = true;
+    return { channel: this.setup.channel, key };
+  }
+
+  voiceEnded(): void {}
+
+  wheel(value: number, _range: number, _time: number, emit: Emit): void {
+    emit(pitchBend(this.setup.channel, value));
+  }
+
+  reassert(emit: Emit): void {
+    emit(pitchBend(this.setup.channel, BEND_CENTRE));
+  }
+
+  panic(emit: Emit): void {
+    emit(pitchBend(this.setup.channel, BEND_CENTRE));
+  }
+
+  usedChannels(): number[] {
+    return this.used ? [this.setup.channel] : [];
+  }
+}

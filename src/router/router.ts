@@ -1,0 +1,436 @@
+import {
+  ACTIVE_SENSING,
+  CC,
+  CHANNEL_PRESSURE,
+  channelPressure,
+  CONTROL_CHANGE,
+  controlChange,
+  NOTE_OFF,
+  NOTE_ON,
+  noteOff,
+  noteOn,
+  PITCH_BEND,
+  POLY_PRESSURE,
+  polyPressure,
+  PROGRAM_CHANGE,
+  programChange,
+  type TimedMessage,
+} from '../midi/bytes.js';
+import { MidiStreamParser } from '../midi/parser.js';
+import { BEND_CENTRE } from '../midi/pitch-bend.js';
+import { keyOf, spellKey, type SpelledPitch } from '../pitch/index.js';
+import type { NoteContext, Speller } from '../spelling/speller.js';
+import type { OutputStrategy, PlaceContext, Placement } from './output.js';
+import type { PitchTable, TunedNote } from './pitch-table.js';
+
+/** Silence after an active-sensing byte that means the sender is gone (MIDI 1.0). */
+export const ACTIVE_SENSING_TIMEOUT_MS = 300;
+
+/** What the router decided, for displays and logs (never needed for the output itself). */
+export type RouterEvent =
+  | { readonly type: 'note'; readonly time: number; readonly source: number; readonly inChannel: number; readonly inKey: number; readonly velocity: number; readonly pitch: SpelledPitch; readonly hz: number; readonly cents: number; readonly placement: Placement }
+  | { readonly type: 'note-dropped'; readonly time: number; readonly inKey: number; readonly reason: string }
+  | { readonly type: 'out-of-range'; readonly time: number; readonly pitch: SpelledPitch; readonly neededCents: number }
+  | { readonly type: 'steal'; readonly time: number; readonly voices: number }
+  | { readonly type: 'panic'; readonly time: number; readonly reason: string };
+
+export interface RouterSetup {
+  readonly table: PitchTable;
+  readonly speller: Speller;
+  readonly output: OutputStrategy;
+  /** Initial wheel range of the player's keyboard in semitones; RPN 0 from the keyboard changes it. */
+  readonly wheelRange: number;
+  readonly observer?: ((event: RouterEvent) => void) | undefined;
+}
+
+export interface RouterStats {
+  notesIn: number;
+  notesOut: number;
+  notesDropped: number;
+  outOfRange: number;
+  bytesIn: number;
+  bytesOut: number;
+  malformedBytes: number;
+  panics: number;
+}
+
+interface Voice {
+  readonly inputId: number;
+  readonly placement: Placement;
+  readonly slot: number;
+  readonly started: number;
+  keyDown: boolean;
+  latched: boolean;
+}
+
+type ParamSelection = 'none' | 'rpn' | 'nrpn';
+
+/**
+ * The engine: raw MIDI in with timestamps, raw MIDI out with timestamps; no I/O, no clock.
+ * It spells each note (through the speller), tunes it (through the pitch table), places it
+ * (through the output strategy), and keeps the book of keys, pedals and voices so that every note
+ * it starts is ended: on key up, on pedal up, on All Notes Off, on an active-sensing timeout and
+ * on panic.
+ */
+export class Router {
+  readonly stats: RouterStats = { notesIn: 0, notesOut: 0, notesDropped: 0, outOfRange: 0, bytesIn: 0, bytesOut: 0, malformedBytes: 0, panics: 0 };
+  private readonly parsers = new Map<number, MidiStreamParser>();
+  /** Keys down, by input id (source, channel, key). */
+  private readonly down = new Map<number, Voice>();
+  /** Every voice still sounding: keys down and keys released under a pedal. */
+  private readonly sounding = new Set<Voice>();
+  /** Note-ons without their note-off yet, per output slot (channel·128 + key). */
+  private readonly keyed = new Map<number, number>();
+  private sustain = false;
+  private sostenuto = false;
+  private wheelRange: number;
+  private wheelValue = BEND_CENTRE;
+  private readonly params = new Map<number, { selection: ParamSelection; msb: number; lsb: number }>();
+  private sensing = false;
+  private lastInput = 0;
+  private out: TimedMessage[] = [];
+  private now = 0;
+  private table: PitchTable;
+  private readonly context: PlaceContext;
+
+  constructor(private readonly setup: RouterSetup) {
+    this.wheelRange = setup.wheelRange;
+    this.table = setup.table;
+    this.context = {
+      emit: (data) => this.emit(data),
+      steal: (which) => this.steal(which),
+      outOfRange: (note, needed) => this.reportOutOfRange(note, needed),
+    };
+  }
+
+  get output(): OutputStrategy {
+    return this.setup.output;
+  }
+
+  /** Replaces the tuning for new notes (sounding notes keep theirs). */
+  setPitchTable(table: PitchTable): void {
+    this.table = table;
+  }
+
+  get pitchTable(): PitchTable {
+    return this.table;
+  }
+
+  private emit(data: number[]): void {
+    this.stats.bytesOut += data.length;
+    this.out.push({ time: this.now, data });
+  }
+
+  private collect(time: number, work: () => void): TimedMessage[] {
+    this.now = time;
+    this.out = [];
+    work();
+    const result = this.out;
+    this.out = [];
+    return result;
+  }
+
+  /** The messages that set a synth up: send at start and whenever the output port (re)appears. */
+  start(time: number): TimedMessage[] {
+    return this.collect(time, () => this.setup.output.start((d) => this.emit(d)));
+  }
+
+  /** Feeds input bytes from one source (a device); any bytes at all, whole messages or not. */
+  process(time: number, bytes: ArrayLike<number>, source = 0): TimedMessage[] {
+    return this.collect(time, () => {
+      this.stats.bytesIn += bytes.length;
+      let parser = this.parsers.get(source);
+      if (!parser) {
+        parser = new MidiStreamParser();
+        this.parsers.set(source, parser);
+      }
+      const droppedBefore = parser.dropped;
+      parser.feed(bytes, (message) => this.handle(message, source));
+      this.stats.malformedBytes += parser.dropped - droppedBefore;
+    });
+  }
+
+  /** Lets time pass without input: the active-sensing timeout. Call every few tens of ms live. */
+  tick(time: number): TimedMessage[] {
+    return this.collect(time, () => {
+      if (this.sensing && time - this.lastInput > ACTIVE_SENSING_TIMEOUT_MS) {
+        this.sensing = false;
+        this.doPanic('active sensing stopped');
+      }
+    });
+  }
+
+  /** Ends every sounding note, lifts pedals, sends All Notes Off and centres bends on every channel used. */
+  panic(time: number, reason = 'panic'): TimedMessage[] {
+    return this.collect(time, () => this.doPanic(reason));
+  }
+
+  /** A source (device) went away: release every note it holds, at once. */
+  releaseSource(time: number, source: number): TimedMessage[] {
+    return this.collect(time, () => {
+      this.parsers.get(source)?.reset();
+      for (const voice of [...this.down.values()]) if (Math.floor(voice.inputId / 2048) === source) this.keyUp(voice.inputId, 0);
+    });
+  }
+
+  /** How many voices sound now (keys down plus those held by pedals). */
+  get soundingCount(): number {
+    return this.sounding.size;
+  }
+
+  private handle(message: number[], source: number): void {
+    const status = message[0] ?? 0;
+    if (status === ACTIVE_SENSING) {
+      this.sensing = true;
+      this.lastInput = this.now;
+      return;
+    }
+    this.lastInput = this.now;
+    if (status >= 0xf0) {
+      this.emit(message); // system exclusive, common and real-time pass through
+      return;
+    }
+    const channel = status & 0x0f;
+    const a = message[1] ?? 0;
+    const b = message[2] ?? 0;
+    switch (status & 0xf0) {
+      case NOTE_ON:
+        if (b === 0) this.keyUp(inputId(source, channel, a), 0);
+        else this.keyDown(source, channel, a, b);
+        return;
+      case NOTE_OFF:
+        this.keyUp(inputId(source, channel, a), b);
+        return;
+      case POLY_PRESSURE: {
+        const voice = this.down.get(inputId(source, channel, a));
+        if (voice) this.emit(polyPressure(voice.placement.channel, voice.placement.key, b));
+        return;
+      }
+      case CONTROL_CHANGE:
+        this.controller(channel, a, b);
+        return;
+      case PROGRAM_CHANGE:
+        for (const c of this.setup.output.zoneChannels) this.emit(programChange(c, a));
+        return;
+      case CHANNEL_PRESSURE:
+        for (const c of this.setup.output.zoneChannels) this.emit(channelPressure(c, a));
+        return;
+      case PITCH_BEND:
+        this.wheelValue = a | (b << 7);
+        this.setup.output.wheel(this.wheelValue, this.wheelRange, this.now, (d) => this.emit(d));
+        return;
+    }
+  }
+
+  private keyDown(source: number, channel: number, key: number, velocity: number): void {
+    const id = inputId(source, channel, key);
+    if (this.down.has(id)) this.keyUp(id, 0); // a second note-on without its note-off: release the first
+    this.stats.notesIn++;
+    const context: NoteContext = { key, velocity, time: this.now, channel, source };
+    let pitch = this.setup.speller.noteOn(context);
+    if (keyOf(pitch) !== key) pitch = spellKey(this.setup.speller.currentWindow(), key); // never trust a speller blindly
+    const tuned = this.table.tune(pitch);
+    const placement = this.setup.output.place(tuned, this.now, this.context);
+    if (!placement) {
+      this.stats.notesDropped++;
+      this.setup.observer?.({ type: 'note-dropped', time: this.now, inKey: key, reason: 'its tuned key lies outside 0…127' });
+      return;
+    }
+    const slot = placement.channel * 128 + placement.key;
+    const keyedNow = this.keyed.get(slot) ?? 0;
+    if (keyedNow > 0) this.emit(noteOff(placement.channel, placement.key)); // re-strike the same synth key cleanly
+    this.keyed.set(slot, keyedNow + 1);
+    this.emit(noteOn(placement.channel, placement.key, velocity));
+    this.stats.notesOut++;
+    const voice: Voice = { inputId: id, placement, slot, started: this.now, keyDown: true, latched: false };
+    this.down.set(id, voice);
+    this.sounding.add(voice);
+    this.setup.observer?.({
+      type: 'note',
+      time: this.now,
+      source,
+      inChannel: channel,
+      inKey: key,
+      velocity,
+      pitch,
+      hz: tuned.hz,
+      cents: tuned.offset.cents,
+      placement,
+    });
+  }
+
+  private keyUp(id: number, velocity: number): void {
+    const voice = this.down.get(id);
+    if (!voice) return;
+    this.down.delete(id);
+    voice.keyDown = false;
+    this.setup.speller.noteOff({ key: id % 128, velocity, time: this.now, channel: Math.floor(id / 128) % 16, source: Math.floor(id / 2048) });
+    this.releaseKey(voice.slot, voice.placement, velocity);
+    if (!this.sustain && !(this.sostenuto && voice.latched)) this.end(voice);
+  }
+
+  /** Sends the note-off for a voice's synth key unless another held voice still keys it. */
+  private releaseKey(slot: number, placement: Placement, velocity: number): void {
+    const count = (this.keyed.get(slot) ?? 0) - 1;
+    if (count > 0) this.keyed.set(slot, count);
+    else {
+      this.keyed.delete(slot);
+      this.emit(noteOff(placement.channel, placement.key, velocity));
+    }
+  }
+
+  private end(voice: Voice): void {
+    if (!this.sounding.delete(voice)) return;
+    this.setup.output.voiceEnded(voice.placement, this.now);
+  }
+
+  private endReleased(): void {
+    for (const voice of [...this.sounding]) {
+      if (!voice.keyDown && !this.sustain && !(this.sostenuto && voice.latched)) this.end(voice);
+    }
+  }
+
+  /** Ends the matching voices at once: note-offs for keys still down, and forgets them (no voiceEnded). */
+  private killVoices(which: (p: Placement) => boolean): number {
+    let count = 0;
+    for (const voice of [...this.sounding]) {
+      if (!which(voice.placement)) continue;
+      if (voice.keyDown) {
+        this.down.delete(voice.inputId);
+        voice.keyDown = false;
+        this.releaseKey(voice.slot, voice.placement, 0);
+      }
+      this.sounding.delete(voice);
+      count++;
+    }
+    return count;
+  }
+
+  private steal(which: (p: Placement) => boolean): void {
+    const voices = this.killVoices(which);
+    this.setup.observer?.({ type: 'steal', time: this.now, voices });
+  }
+
+  private reportOutOfRange(note: TunedNote, neededCents: number): void {
+    this.stats.outOfRange++;
+    this.setup.observer?.({ type: 'out-of-range', time: this.now, pitch: note.pitch, neededCents });
+  }
+
+  private toZone(controller: number, value: number): void {
+    for (const c of this.setup.output.zoneChannels) this.emit(controlChange(c, controller, value));
+  }
+
+  private controller(channel: number, controller: number, value: number): void {
+    switch (controller) {
+      case CC.sustain:
+        this.sustain = value >= 64;
+        this.toZone(controller, value);
+        if (!this.sustain) this.endReleased();
+        return;
+      case CC.sostenuto: {
+        const down = value >= 64;
+        if (down && !this.sostenuto) for (const v of this.sounding) v.latched = v.keyDown;
+        this.sostenuto = down;
+        this.toZone(controller, value);
+        if (!down) {
+          for (const v of this.sounding) v.latched = false;
+          this.endReleased();
+        }
+        return;
+      }
+      case CC.rpnMsb:
+      case CC.rpnLsb:
+      case CC.nrpnMsb:
+      case CC.nrpnLsb:
+      case CC.dataEntry:
+      case CC.dataEntryLsb:
+      case CC.dataIncrement:
+      case CC.dataDecrement:
+        this.parameter(channel, controller, value);
+        return;
+      case CC.allSoundOff:
+        for (const voice of this.sounding) this.setup.output.voiceEnded(voice.placement, this.now);
+        this.killVoices(() => true);
+        for (const c of this.everyChannel()) this.emit(controlChange(c, CC.allSoundOff, 0));
+        return;
+      case CC.resetAllControllers:
+        this.sustain = false;
+        this.sostenuto = false;
+        this.wheelValue = BEND_CENTRE;
+        this.toZone(controller, value);
+        this.setup.output.reassert((d) => this.emit(d));
+        this.endReleased();
+        return;
+      case CC.localControl:
+        return; // meant for the keyboard's own sound, not for the synth behind diesis
+      case CC.allNotesOff:
+      case CC.omniOff:
+      case CC.omniOn:
+      case CC.monoOn:
+      case CC.polyOn:
+        // All four mode messages also mean All Notes Off (MIDI 1.0); they are not forwarded.
+        for (const id of [...this.down.keys()]) this.keyUp(id, 0);
+        if (controller === CC.allNotesOff) for (const c of this.everyChannel()) this.emit(controlChange(c, CC.allNotesOff, 0));
+        return;
+      default:
+        this.toZone(controller, value);
+    }
+  }
+
+  /**
+   * Registered parameters from the keyboard are consumed (they would change the synth's bend
+   * ranges); RPN 0 sets the wheel range. Non-registered ones pass through to the zone.
+   */
+  private parameter(channel: number, controller: number, value: number): void {
+    const state = this.params.get(channel) ?? { selection: 'none' as ParamSelection, msb: 127, lsb: 127 };
+    this.params.set(channel, state);
+    if (controller === CC.rpnMsb || controller === CC.rpnLsb) {
+      if (controller === CC.rpnMsb) state.msb = value;
+      else state.lsb = value;
+      state.selection = state.msb === 127 && state.lsb === 127 ? 'none' : 'rpn';
+      return;
+    }
+    if (controller === CC.nrpnMsb || controller === CC.nrpnLsb) {
+      state.selection = 'nrpn';
+      this.toZone(controller, value);
+      return;
+    }
+    if (state.selection === 'nrpn') {
+      this.toZone(controller, value);
+      return;
+    }
+    if (state.selection === 'rpn' && state.msb === 0 && state.lsb === 0) {
+      const cents = Math.round((this.wheelRange % 1) * 100);
+      if (controller === CC.dataEntry) this.wheelRange = value + cents / 100;
+      else if (controller === CC.dataEntryLsb) this.wheelRange = Math.floor(this.wheelRange) + Math.min(value, 99) / 100;
+      if (this.wheelRange <= 0) this.wheelRange = 0.01;
+    }
+  }
+
+  private everyChannel(): number[] {
+    return [...new Set([...this.setup.output.allChannels, ...this.setup.output.zoneChannels])];
+  }
+
+  private doPanic(reason: string): void {
+    this.stats.panics++;
+    for (const voice of this.sounding) if (voice.keyDown) this.releaseKey(voice.slot, voice.placement, 0);
+    this.keyed.clear();
+    this.down.clear();
+    this.sounding.clear();
+    this.sustain = false;
+    this.sostenuto = false;
+    this.wheelValue = BEND_CENTRE;
+    for (const c of this.everyChannel()) {
+      this.emit(controlChange(c, CC.sustain, 0));
+      this.emit(controlChange(c, CC.sostenuto, 0));
+      this.emit(controlChange(c, CC.soft, 0));
+      this.emit(controlChange(c, CC.allNotesOff, 0));
+    }
+    this.setup.output.panic((d) => this.emit(d));
+    this.setup.observer?.({ type: 'panic', time: this.now, reason });
+  }
+}
+
+function inputId(source: number, channel: number, key: number): number {
+  return source * 2048 + channel * 128 + key;
+}

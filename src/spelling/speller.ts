@@ -1,0 +1,32 @@
+import { DEFAULT_WINDOW, spellKey, type KeyboardWindow, type SpelledPitch } from '../pitch/index.js';
+
+/** What a speller knows of a note as it arrives. */
+export interface NoteContext {
+  readonly key: number;
+  readonly velocity: number;
+  /** Milliseconds, from the event's own timestamp. */
+  readonly time: number;
+  /** Input channel 0…15 and input source (device) number. */
+  readonly channel: number;
+  readonly source: number;
+}
+
+/**
+ * Decides the spelling of each new note. Pure and causal: it sees only what has happened.
+ * `noteOn` must return a spelling of `note.key`.
+ */
+export interface Speller {
+  noteOn(note: NoteContext): SpelledPitch;
+  noteOff(note: NoteContext): void;
+  /** The 12 spellings new notes would get now (for 12-class outputs and displays). */
+  currentWindow(): KeyboardWindow;
+}
+
+/** The simplest speller: every key always takes its spelling in one 12-note window. */
+export function fixedSpeller(window: KeyboardWindow = DEFAULT_WINDOW): Speller {
+  return {
+    noteOn: (note) => spellKey(window, note.key),
+    noteOff: () => undefined,
+    currentWindow: () => window,
+  };
+}
