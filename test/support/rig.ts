@@ -38,12 +38,8 @@ export class Rig {
     this.deliver(this.router.start(0));
   }
 
-  expectedHz(key: number): { pitch: SpelledPitch; hz: number } {
-    const pitch = this.spell(key);
-    return { pitch, hz: frequency(this.options.tuning, this.options.reference, pitch) };
-  }
-
-  deliver(messages: readonly TimedMessage[], onsetKey?: number): ModelVoice[] {
+  /** Feeds output to the model; a voice it starts is tagged with the spelling of `onset` (a key, or the pitch itself). */
+  deliver(messages: readonly TimedMessage[], onset?: number | SpelledPitch): ModelVoice[] {
     const started: ModelVoice[] = [];
     for (const m of messages) {
       const problem = malformation(m.data);
@@ -51,8 +47,9 @@ export class Rig {
       this.sent.push(m);
       const voice = this.model.receive(m.time, m.data);
       if (voice) {
-        if (onsetKey !== undefined) {
-          const { pitch, hz } = this.expectedHz(onsetKey);
+        if (onset !== undefined) {
+          const pitch = typeof onset === 'number' ? this.spell(onset) : onset;
+          const hz = frequency(this.options.tuning, this.options.reference, pitch);
           voice.tag = { pitch, hz, wheelAtOnset: this.wheelCents } satisfies VoiceTag;
         }
         started.push(voice);
@@ -63,16 +60,16 @@ export class Rig {
 
   at(time: number): this {
     this.time = time;
+    this.model.advance(time);
     return this;
   }
 
   after(ms: number): this {
-    this.time += ms;
-    return this;
+    return this.at(this.time + ms);
   }
 
-  send(bytes: number[], onsetKey?: number): ModelVoice[] {
-    return this.deliver(this.router.process(this.time, bytes), onsetKey);
+  send(bytes: number[], onset?: number | SpelledPitch, source = 0): ModelVoice[] {
+    return this.deliver(this.router.process(this.time, bytes, source), onset);
   }
 
   on(key: number, velocity = 100, channel = 0): this {

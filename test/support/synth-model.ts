@@ -121,13 +121,18 @@ export class SynthModel {
     }
   }
 
-  /** Receives one whole message at `time` (ms). Returns the voice a note-on started, if any. */
-  receive(time: number, data: readonly number[]): ModelVoice | undefined {
+  /** Lets time pass: release tails older than `tailMs` fall silent. */
+  advance(time: number): void {
     this.time = time;
     for (let i = this.voices.length - 1; i >= 0; i--) {
       const v = this.voices[i]!;
       if (v.state === 'tail' && time - v.endTime >= this.tailMs) this.voices.splice(i, 1);
     }
+  }
+
+  /** Receives one whole message at `time` (ms). Returns the voice a note-on started, if any. */
+  receive(time: number, data: readonly number[]): ModelVoice | undefined {
+    this.advance(time);
     const status = data[0]!;
     if (status === 0xf0) {
       this.sysex(data);
