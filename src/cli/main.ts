@@ -3,6 +3,7 @@ import { UserError } from '../util/errors.js';
 import { registerChart } from './chart-command.js';
 import type { CommandIo } from './io.js';
 import { registerPresetCommands } from './preset-commands.js';
+import { registerRender } from './render-command.js';
 
 const VERSION = '0.1.0';
 
@@ -18,6 +19,7 @@ export function buildProgram(io: CommandIo): Command {
     });
   registerChart(program, io);
   registerPresetCommands(program, io);
+  registerRender(program, io);
   for (const command of program.commands) command.exitOverride().configureOutput(program.configureOutput());
   return program;
 }

@@ -165,6 +165,15 @@ export class Router {
     return this.collect(time, () => this.doPanic(reason));
   }
 
+  /** Lets go of every key and lifts the pedals, as a player would at the end: release tails ring on. */
+  releaseAll(time: number): TimedMessage[] {
+    return this.collect(time, () => {
+      for (const id of [...this.down.keys()]) this.keyUp(id, 0);
+      if (this.sustain) this.controller(0, CC.sustain, 0);
+      if (this.sostenuto) this.controller(0, CC.sostenuto, 0);
+    });
+  }
+
   /** A source (device) went away: release every note it holds, at once. */
   releaseSource(time: number, source: number): TimedMessage[] {
     return this.collect(time, () => {

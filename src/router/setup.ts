@@ -129,3 +129,16 @@ export function parseChannels(text: string, what = '--channels'): number[] {
   }
   return channels;
 }
+
+/** Channels 0…15 as a synth shows them, ranges joined: `2–16`, `1,3,5–8`. */
+export function formatChannels(channels: readonly number[]): string {
+  const sorted = [...new Set(channels)].sort((a, b) => a - b).map((c) => c + 1);
+  const parts: string[] = [];
+  for (let i = 0; i < sorted.length; ) {
+    let j = i;
+    while (j + 1 < sorted.length && sorted[j + 1] === (sorted[j] ?? 0) + 1) j++;
+    parts.push(j > i + 1 ? `${sorted[i]}–${sorted[j]}` : sorted.slice(i, j + 1).join(','));
+    i = j + 1;
+  }
+  return parts.join(',');
+}

@@ -1,0 +1,28 @@
+import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { readMidiFile, type MidiFileContent } from '../src/render/smf.js';
+
+/**
+ * The open corpus beside the project (../shared/corpus/mozart): Mozart piano sonatas, derived from
+ * Craig Stuart Sapp's digital edition of the Alte Mozart-Ausgabe, CC BY-NC-SA 4.0 (its LICENSE.md).
+ */
+export const CORPUS_DIR = join(fileURLToPath(new URL('.', import.meta.url)), '..', '..', '..', 'shared', 'corpus', 'mozart');
+
+export interface Movement {
+  readonly name: string;
+  readonly midi: MidiFileContent;
+  readonly csvPath: string;
+}
+
+export function loadCorpus(dir = CORPUS_DIR): Movement[] {
+  if (!existsSync(dir)) return [];
+  return readdirSync(dir)
+    .filter((f) => f.endsWith('.mid'))
+    .sort()
+    .map((f) => ({
+      name: f.replace(/\.mid$/u, ''),
+      midi: readMidiFile(readFileSync(join(dir, f)), f),
+      csvPath: join(dir, f.replace(/\.mid$/u, '.csv')),
+    }));
+}

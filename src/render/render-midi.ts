@@ -1,0 +1,62 @@
+import type { Router } from '../router/router.js';
+import type { MidiFileContent } from './smf.js';
+
+export interface TickedMessage {
+  readonly tick: number;
+  readonly data: readonly number[];
+}
+
+export interface RenderSummary {
+  readonly notesIn: number;
+  readonly notesOut: number;
+  readonly notesDropped: number;
+  readonly mode: string;
+  /** Output channels that carried notes, 0…15. */
+  readonly channelsUsed: readonly number[];
+  /** Tuning messages sent: pitch bends for tuning, or MTS messages. */
+  readonly retunes: number;
+  readonly steals: number;
+  readonly outOfRange: number;
+  readonly malformedBytes: number;
+  /** Bytes sent per byte received while playing (set-up and the closing panic excluded). */
+  readonly bytesPerInputByte: number;
+}
+
+/**
+ * Runs a file's events through the engine: set-up at tick 0, every event at its own tick and
+ * time; at the last tick every key and pedal is let go, and once the release guard has passed a
+ * panic closes the file, so nothing is left sounding or bent and no release tail is retuned.
+ */
+export function renderEvents(content: MidiFileContent, router: Router, releaseGuardMs: number): { messages: TickedMessage[]; summary: RenderSummary } {
+  const messages: TickedMessage[] = router.start(0).map((m) => ({ tick: 0, data: m.data }));
+  let bytesIn = 0;
+  let bytesOut = 0;
+  let lastTime = 0;
+  for (const event of content.events) {
+    bytesIn += event.data.length;
+    lastTime = event.time;
+    for (const m of router.process(event.time, event.data)) {
+      bytesOut += m.data.length;
+      messages.push({ tick: event.tick, data: m.data });
+    }
+  }
+  for (const m of router.releaseAll(lastTime)) messages.push({ tick: content.lastTick, data: m.data });
+  const closingTick = content.lastTick + Math.ceil(releaseGuardMs / content.msPerTickAtEnd);
+  for (const m of router.panic(lastTime + releaseGuardMs, 'end of file')) messages.push({ tick: closingTick, data: m.data });
+  const { stats, output } = router;
+  return {
+    messages,
+    summary: {
+      notesIn: stats.notesIn,
+      notesOut: stats.notesOut,
+      notesDropped: stats.notesDropped,
+      mode: output.mode,
+      channelsUsed: output.usedChannels(),
+      retunes: output.counters.retunes,
+      steals: output.counters.steals,
+      outOfRange: stats.outOfRange,
+      malformedBytes: stats.malformedBytes,
+      bytesPerInputByte: bytesIn === 0 ? 0 : bytesOut / bytesIn,
+    },
+  };
+}
