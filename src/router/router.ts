@@ -57,9 +57,11 @@ export interface RouterStats {
 interface Voice {
   readonly inputId: number;
   readonly placement: Placement;
+  /** `channel · 128 + key` of the placement: one voice at most owns a synth key at a time. */
   readonly slot: number;
-  readonly started: number;
   keyDown: boolean;
+  /** Its synth note was already ended (stolen, or handed to a newer note on the same synth key). */
+  silenced: boolean;
   latched: boolean;
 }
 
@@ -79,8 +81,8 @@ export class Router {
   private readonly down = new Map<number, Voice>();
   /** Every voice still sounding: keys down and keys released under a pedal. */
   private readonly sounding = new Set<Voice>();
-  /** Note-ons without their note-off yet, per output slot (channel·128 + key). */
-  private readonly keyed = new Map<number, number>();
+  /** The voice whose note-on is the latest on each synth key (channel·128 + key) and not yet ended. */
+  private readonly owners = new Map<number, Voice>();
   private sustain = false;
   private sostenuto = false;
   private wheelRange: number;
@@ -235,8 +237,8 @@ export class Router {
     const id = inputId(source, channel, key);
     if (this.down.has(id)) this.keyUp(id, 0); // a second note-on without its note-off: release the first
     this.stats.notesIn++;
-    const context: NoteContext = { key, velocity, time: this.now, channel, source };
-    let pitch = this.setup.speller.noteOn(context);
+    const context = this.contextOf(id, velocity);
+    let pitch = this.setup.speller.spell([context])[0] ?? spellKey(this.setup.speller.currentWindow(), key);
     if (keyOf(pitch) !== key) pitch = spellKey(this.setup.speller.currentWindow(), key); // never trust a speller blindly
     const tuned = this.table.tune(pitch);
     const placement = this.setup.output.place(tuned, this.now, this.context);
@@ -246,12 +248,12 @@ export class Router {
       return;
     }
     const slot = placement.channel * 128 + placement.key;
-    const keyedNow = this.keyed.get(slot) ?? 0;
-    if (keyedNow > 0) this.emit(noteOff(placement.channel, placement.key)); // re-strike the same synth key cleanly
-    this.keyed.set(slot, keyedNow + 1);
+    const previous = this.owners.get(slot);
+    if (previous) this.handOver(previous); // re-strike the same synth key cleanly
     this.emit(noteOn(placement.channel, placement.key, velocity));
     this.stats.notesOut++;
-    const voice: Voice = { inputId: id, placement, slot, started: this.now, keyDown: true, latched: false };
+    const voice: Voice = { inputId: id, placement, slot, keyDown: true, silenced: false, latched: false };
+    this.owners.set(slot, voice);
     this.down.set(id, voice);
     this.sounding.add(voice);
     this.setup.observer?.({
@@ -272,20 +274,36 @@ export class Router {
     const voice = this.down.get(id);
     if (!voice) return;
     this.down.delete(id);
+    this.setup.speller.noteOff(this.contextOf(id, velocity));
+    if (voice.silenced) return;
     voice.keyDown = false;
-    this.setup.speller.noteOff({ key: id % 128, velocity, time: this.now, channel: Math.floor(id / 128) % 16, source: Math.floor(id / 2048) });
-    this.releaseKey(voice.slot, voice.placement, velocity);
+    this.silence(voice, velocity);
     if (!this.sustain && !(this.sostenuto && voice.latched)) this.end(voice);
   }
 
-  /** Sends the note-off for a voice's synth key unless another held voice still keys it. */
-  private releaseKey(slot: number, placement: Placement, velocity: number): void {
-    const count = (this.keyed.get(slot) ?? 0) - 1;
-    if (count > 0) this.keyed.set(slot, count);
-    else {
-      this.keyed.delete(slot);
-      this.emit(noteOff(placement.channel, placement.key, velocity));
+  private contextOf(id: number, velocity: number): NoteContext {
+    return { key: id % 128, velocity, time: this.now, channel: Math.floor(id / 128) % 16, source: Math.floor(id / 2048) };
+  }
+
+  /** Sends the note-off for a voice's synth key. */
+  private silence(voice: Voice, velocity: number): void {
+    if (this.owners.get(voice.slot) === voice) {
+      this.owners.delete(voice.slot);
+      this.emit(noteOff(voice.placement.channel, voice.placement.key, velocity));
     }
+  }
+
+  /**
+   * A new note takes the synth key a held voice is sounding on (two inputs, one synth key): the
+   * old one is released now, as if its key went up; its own key-up later does nothing.
+   */
+  private handOver(previous: Voice): void {
+    this.silence(previous, 0);
+    if (previous.keyDown) {
+      previous.keyDown = false;
+      previous.silenced = true;
+    }
+    if (!this.sustain && !(this.sostenuto && previous.latched)) this.end(previous);
   }
 
   private end(voice: Voice): void {
@@ -299,15 +317,15 @@ export class Router {
     }
   }
 
-  /** Ends the matching voices at once: note-offs for keys still down, and forgets them (no voiceEnded). */
+  /** Ends the matching voices at once: note-offs for keys still down (their key-ups then do nothing); no voiceEnded. */
   private killVoices(which: (p: Placement) => boolean): number {
     let count = 0;
     for (const voice of [...this.sounding]) {
       if (!which(voice.placement)) continue;
+      this.silence(voice, 0);
       if (voice.keyDown) {
-        this.down.delete(voice.inputId);
         voice.keyDown = false;
-        this.releaseKey(voice.slot, voice.placement, 0);
+        voice.silenced = true;
       }
       this.sounding.delete(voice);
       count++;
@@ -422,8 +440,9 @@ export class Router {
 
   private doPanic(reason: string): void {
     this.stats.panics++;
-    for (const voice of this.sounding) if (voice.keyDown) this.releaseKey(voice.slot, voice.placement, 0);
-    this.keyed.clear();
+    for (const voice of this.sounding) this.silence(voice, 0);
+    for (const id of this.down.keys()) this.setup.speller.noteOff(this.contextOf(id, 0));
+    this.owners.clear();
     this.down.clear();
     this.sounding.clear();
     this.sustain = false;

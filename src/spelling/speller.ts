@@ -12,11 +12,11 @@ export interface NoteContext {
 }
 
 /**
- * Decides the spelling of each new note. Pure and causal: it sees only what has happened.
- * `noteOn` must return a spelling of `note.key`.
+ * Decides the spelling of each new note. Causal: it sees only what has happened. `spell` takes
+ * the notes that begin together (a chord, or a single note) and returns a spelling of each key.
  */
 export interface Speller {
-  noteOn(note: NoteContext): SpelledPitch;
+  spell(notes: readonly NoteContext[]): SpelledPitch[];
   noteOff(note: NoteContext): void;
   /** The 12 spellings new notes would get now (for 12-class outputs and displays). */
   currentWindow(): KeyboardWindow;
@@ -25,7 +25,7 @@ export interface Speller {
 /** The simplest speller: every key always takes its spelling in one 12-note window. */
 export function fixedSpeller(window: KeyboardWindow = DEFAULT_WINDOW): Speller {
   return {
-    noteOn: (note) => spellKey(window, note.key),
+    spell: (notes) => notes.map((n) => spellKey(window, n.key)),
     noteOff: () => undefined,
     currentWindow: () => window,
   };

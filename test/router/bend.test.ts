@@ -1,8 +1,9 @@
 import { describe, expect, it } from 'vitest';
-import { parseSpelledPitch, parseWindow, type SpelledPitch } from '../../src/pitch/index.js';
+import { parseSpelledPitch, type SpelledPitch } from '../../src/pitch/index.js';
 import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
 import { A440, parseReference } from '../../src/tuning/index.js';
 import { Rig } from '../support/rig.js';
+import { scriptedSpeller } from '../support/spellers.js';
 
 const meantone = loadTuningPreset('meantone-1-4').tuning;
 const multi = { tuning: meantone, reference: A440, layout: 'multi' as const, bendRange: 2 };
@@ -18,9 +19,7 @@ function spelled(names: Record<number, string>): (key: number) => SpelledPitch {
   };
 }
 
-function speller(spell: (key: number) => SpelledPitch) {
-  return { noteOn: (n: { key: number }) => spell(n.key), noteOff: () => undefined, currentWindow: () => parseWindow('Eb..G#') };
-}
+const speller = (spell: (key: number) => SpelledPitch) => scriptedSpeller((n) => spell(n.key));
 
 describe('bend output: start-up', () => {
   it('configures an MPE lower zone: zone message, member ranges ±48, master ±2, bends centred (RP-053)', () => {

@@ -3,18 +3,15 @@ import { DEFAULT_WINDOW, parseSpelledPitch, spellKey, type SpelledPitch } from '
 import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
 import { A440, parseReference } from '../../src/tuning/index.js';
 import { Rig } from '../support/rig.js';
+import { scriptedSpeller } from '../support/spellers.js';
 
 const meantone = loadTuningPreset('meantone-1-4').tuning;
 /** MTS resolution is 100/16384 cent; the error is at most half of it. */
 const MTS = 0.0031;
 
 /** A test speller: channel 1 plays the flat of each black key, every other channel the window's sharps. */
-const byChannel = {
-  noteOn: (n: { key: number; channel: number }) => (n.channel === 1 ? parseSpelledPitch('Ab4') : spellKey(DEFAULT_WINDOW, n.key)),
-  noteOff: () => undefined,
-  currentWindow: () => DEFAULT_WINDOW,
-};
-const speller = (spell: (key: number) => SpelledPitch) => ({ noteOn: (n: { key: number }) => spell(n.key), noteOff: () => undefined, currentWindow: () => DEFAULT_WINDOW });
+const byChannel = scriptedSpeller((n) => (n.channel === 1 ? parseSpelledPitch('Ab4') : spellKey(DEFAULT_WINDOW, n.key)));
+const speller = (spell: (key: number) => SpelledPitch) => scriptedSpeller((n) => spell(n.key));
 const A_FLAT_4 = parseSpelledPitch('Ab4');
 
 describe('mts-note output', () => {

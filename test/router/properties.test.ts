@@ -5,6 +5,7 @@ import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
 import { createRouter, type EngineOptionsInput } from '../../src/router/setup.js';
 import { parseReference } from '../../src/tuning/index.js';
 import { Rig } from '../support/rig.js';
+import { scriptedSpeller } from '../support/spellers.js';
 import { malformation } from '../support/synth-model.js';
 
 type Command =
@@ -41,7 +42,7 @@ const references = ['A4=440', 'A4=415', 'A4=466', 'C4=256'].map((r) => parseRefe
 function perform(options: EngineOptionsInput, tolerance: number, commands: Command[]): void {
   const chosen = new Map<number, SpelledPitch>();
   const spell = (k: number): SpelledPitch => chosen.get(k) ?? spellKey(DEFAULT_WINDOW, k);
-  const speller = { noteOn: (n: { key: number }) => spell(n.key), noteOff: () => undefined, currentWindow: () => DEFAULT_WINDOW };
+  const speller = scriptedSpeller((n) => spell(n.key));
   const rig = new Rig({ ...options, speller }, spell);
   const held = new Set<number>();
   const step = (): void => {
