@@ -25,6 +25,12 @@ class NaiveOutput implements OutputStrategy {
     this.counters.retunes++;
     return { channel, key: note.nearestKey };
   }
+  unitOf(): number {
+    return -1;
+  }
+  retune(): boolean {
+    return false;
+  }
   voiceEnded(): void {}
   wheel(): void {}
   reassert(): void {}

@@ -63,7 +63,7 @@ export function registerRender(program: Command, io: CommandIo): void {
     if (resolve(cli.output) === resolve(input)) throw new UserError(`-o ${cli.output}: refusing to overwrite the input file`, 2);
     const { preset, options } = resolveEngineCli(cli);
     const content = readMidiFile(readInputFile(input), input);
-    const engine = resolveEngineOptions(options);
+    const engine = resolveEngineOptions({ ...options, gather: 'same-time' }); // in a file, equal onsets are a chord
     const { messages, summary } = renderEvents(content, createRouter(engine), engine.releaseGuardMs);
     writeOutputFile(cli.output, writeMidiFile(content.division, content.meta, [messages]));
     const setup = describeSetup(preset.name, engine.reference, engine.mode, engine.layout, engine.channels);

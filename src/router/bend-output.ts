@@ -1,5 +1,6 @@
 import { bendSensitivity, CC, controlChange, mpeConfiguration, pitchBend } from '../midi/bytes.js';
 import { BEND_CENTRE, bendToCents, centsToBend } from '../midi/pitch-bend.js';
+import { keyOf } from '../pitch/index.js';
 import type { Emit, OutputCounters, OutputStrategy, PlaceContext, Placement } from './output.js';
 import type { TunedNote } from './pitch-table.js';
 
@@ -142,6 +143,19 @@ export class BendOutput implements OutputStrategy {
     if (!s || s.sounding === 0) return;
     s.sounding--;
     if (s.sounding === 0) s.lastEnd = time;
+  }
+
+  unitOf(placement: Placement): number {
+    return placement.channel;
+  }
+
+  retune(placement: Placement, note: TunedNote, context: PlaceContext): boolean {
+    const s = this.states.find((x) => x.channel === placement.channel);
+    const needed = centsToBend(note.offset.cents - 100 * (placement.key - keyOf(note.pitch)), this.setup.bendRange);
+    if (!s || needed.clamped) return false;
+    s.tuningBend = needed.value;
+    this.send(s, context.emit);
+    return true;
   }
 
   wheel(value: number, wheelRangeSemitones: number, time: number, emit: Emit): void {

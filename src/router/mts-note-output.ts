@@ -101,6 +101,22 @@ export class MtsNoteOutput implements OutputStrategy {
     if (slot.sounding === 0) slot.lastEnd = time;
   }
 
+  unitOf(placement: Placement): number {
+    return placement.key;
+  }
+
+  retune(placement: Placement, note: TunedNote, context: PlaceContext): boolean {
+    const slot = this.slots[placement.key];
+    if (!slot) return false;
+    const data = encodeFrequency(note.hz, this.setup.synthA4); // MTS tunes a slot to any frequency
+    if (!sameData(slot.data, data)) {
+      slot.data = data;
+      this.counters.retunes++;
+      context.emit(singleNoteTuning(this.setup.device, this.setup.program, [{ key: placement.key, data }]));
+    }
+    return true;
+  }
+
   wheel(value: number, _range: number, _time: number, emit: Emit): void {
     emit(pitchBend(this.setup.channel, value));
   }

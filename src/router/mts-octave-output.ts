@@ -78,6 +78,22 @@ export class MtsOctaveOutput implements OutputStrategy {
 
   voiceEnded(): void {}
 
+  unitOf(placement: Placement): number {
+    return mod(placement.key, 12);
+  }
+
+  retune(placement: Placement, note: TunedNote, context: PlaceContext): boolean {
+    if (placement.key !== keyOf(note.pitch) + this.shift) return false;
+    const { value, clamped } = this.fit(note.offset.cents);
+    if (clamped) return false;
+    const slot = mod(placement.key, 12);
+    if (this.offsets[slot] !== value) {
+      this.offsets[slot] = value;
+      this.send(context.emit);
+    }
+    return true;
+  }
+
   wheel(value: number, _range: number, _time: number, emit: Emit): void {
     emit(pitchBend(this.setup.channel, value));
   }

@@ -43,6 +43,10 @@ export interface OutputStrategy {
   place(note: TunedNote, time: number, context: PlaceContext): Placement | undefined;
   /** A voice placed earlier no longer sounds (its key and any pedal holding it are up). */
   voiceEnded(placement: Placement, time: number): void;
+  /** The tuning unit a placement belongs to (a bend channel, an MTS slot, a key class); −1 when it has none. */
+  unitOf(placement: Placement): number;
+  /** Retunes the unit of `placement` in place to `note`, sounding notes included; false if it cannot. */
+  retune(placement: Placement, note: TunedNote, context: PlaceContext): boolean;
   /** The player's pitch wheel moved: 14-bit value, and the range it spans in semitones. */
   wheel(value: number, wheelRangeSemitones: number, time: number, emit: Emit): void;
   /** Sends again whatever tuning a Reset All Controllers may have cleared. */

@@ -28,6 +28,14 @@ export class PassOutput implements OutputStrategy {
 
   voiceEnded(): void {}
 
+  unitOf(): number {
+    return -1;
+  }
+
+  retune(): boolean {
+    return false;
+  }
+
   wheel(value: number, _range: number, _time: number, emit: Emit): void {
     emit(pitchBend(this.channel, value));
   }

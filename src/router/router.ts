@@ -18,10 +18,12 @@ import {
 } from '../midi/bytes.js';
 import { MidiStreamParser } from '../midi/parser.js';
 import { BEND_CENTRE } from '../midi/pitch-bend.js';
-import { keyOf, spellKey, type SpelledPitch } from '../pitch/index.js';
+import { keyOf, samePitch, spellKey, type SpelledPitch } from '../pitch/index.js';
+import type { ControlMap, RouterAction } from '../spelling/control-map.js';
 import type { NoteContext, Speller } from '../spelling/speller.js';
+import { EQUAL_TEMPERAMENT } from './equal-temperament.js';
 import type { OutputStrategy, PlaceContext, Placement } from './output.js';
-import type { PitchTable, TunedNote } from './pitch-table.js';
+import { PitchTable, type TunedNote } from './pitch-table.js';
 
 /** Silence after an active-sensing byte that means the sender is gone (MIDI 1.0). */
 export const ACTIVE_SENSING_TIMEOUT_MS = 300;
@@ -40,6 +42,13 @@ export interface RouterSetup {
   readonly output: OutputStrategy;
   /** Initial wheel range of the player's keyboard in semitones; RPN 0 from the keyboard changes it. */
   readonly wheelRange: number;
+  /** The player's pedals, key switches and program changes bound to spelling actions. */
+  readonly controls?: ControlMap | undefined;
+  /**
+   * Live: how long to wait for the rest of a chord before spelling it (0: spell each note at once).
+   * Files: `'same-time'` spells note-ons with equal timestamps as one chord.
+   */
+  readonly gather?: number | 'same-time' | undefined;
   readonly observer?: ((event: RouterEvent) => void) | undefined;
 }
 
@@ -56,6 +65,8 @@ export interface RouterStats {
 
 interface Voice {
   readonly inputId: number;
+  pitch: SpelledPitch;
+  readonly velocity: number;
   readonly placement: Placement;
   /** `channel · 128 + key` of the placement: one voice at most owns a synth key at a time. */
   readonly slot: number;
@@ -92,12 +103,14 @@ export class Router {
   private lastInput = 0;
   private out: TimedMessage[] = [];
   private now = 0;
-  private table: PitchTable;
+  private readonly tables = new Map<string, PitchTable>();
+  private passThrough = false;
+  private pending: Array<{ source: number; channel: number; key: number; velocity: number }> = [];
+  private pendingSince = 0;
   private readonly context: PlaceContext;
 
   constructor(private readonly setup: RouterSetup) {
     this.wheelRange = setup.wheelRange;
-    this.table = setup.table;
     this.context = {
       emit: (data) => this.emit(data),
       steal: (which) => this.steal(which),
@@ -109,13 +122,24 @@ export class Router {
     return this.setup.output;
   }
 
-  /** Replaces the tuning for new notes (sounding notes keep theirs). */
-  setPitchTable(table: PitchTable): void {
-    this.table = table;
+  /** True while new notes sound in 12-ET at the reference (the pass control, for comparison). */
+  get passing(): boolean {
+    return this.passThrough;
   }
 
-  get pitchTable(): PitchTable {
-    return this.table;
+  /** The pitch table for new notes: 12-ET while passing; a just table moved to the speller's tonic. */
+  private tableNow(): PitchTable {
+    const base = this.setup.table;
+    const tonic = this.setup.speller.currentTonic();
+    const tuning = this.passThrough ? EQUAL_TEMPERAMENT : base.tuning.kind === 'just' && tonic ? base.tuning.withTonic(tonic) : base.tuning;
+    if (tuning === base.tuning) return base;
+    const id = this.passThrough ? 'pass' : `tonic ${tonic?.fifths}`;
+    let table = this.tables.get(id);
+    if (!table) {
+      table = new PitchTable(tuning, base.reference, base.synthA4);
+      this.tables.set(id, table);
+    }
+    return table;
   }
 
   private emit(data: number[]): void {
@@ -155,6 +179,7 @@ export class Router {
   /** Lets time pass without input: the active-sensing timeout. Call every few tens of ms live. */
   tick(time: number): TimedMessage[] {
     return this.collect(time, () => {
+      if (this.pending.length > 0 && typeof this.setup.gather === 'number' && time - this.pendingSince >= this.setup.gather) this.flushChord();
       if (this.sensing && time - this.lastInput > ACTIVE_SENSING_TIMEOUT_MS) {
         this.sensing = false;
         this.doPanic('active sensing stopped');
@@ -170,6 +195,7 @@ export class Router {
   /** Lets go of every key and lifts the pedals, as a player would at the end: release tails ring on. */
   releaseAll(time: number): TimedMessage[] {
     return this.collect(time, () => {
+      this.flushChord();
       for (const id of [...this.down.keys()]) this.keyUp(id, 0);
       if (this.sustain) this.controller(0, CC.sustain, 0);
       if (this.sostenuto) this.controller(0, CC.sostenuto, 0);
@@ -201,13 +227,24 @@ export class Router {
       this.emit(message); // system exclusive, common and real-time pass through
       return;
     }
+    const outcome = this.setup.controls?.intercept(message, source);
+    if (outcome) {
+      this.flushChord();
+      for (const action of outcome.routerActions) this.routerAction(action);
+      return;
+    }
     const channel = status & 0x0f;
     const a = message[1] ?? 0;
     const b = message[2] ?? 0;
-    switch (status & 0xf0) {
+    const kind = status & 0xf0;
+    if (kind === NOTE_ON && b > 0) {
+      this.gatherNote(source, channel, a, b);
+      return;
+    }
+    this.flushChord();
+    switch (kind) {
       case NOTE_ON:
-        if (b === 0) this.keyUp(inputId(source, channel, a), 0);
-        else this.keyDown(source, channel, a, b);
+        this.keyUp(inputId(source, channel, a), 0);
         return;
       case NOTE_OFF:
         this.keyUp(inputId(source, channel, a), b);
@@ -233,14 +270,40 @@ export class Router {
     }
   }
 
-  private keyDown(source: number, channel: number, key: number, velocity: number): void {
-    const id = inputId(source, channel, key);
-    if (this.down.has(id)) this.keyUp(id, 0); // a second note-on without its note-off: release the first
-    this.stats.notesIn++;
-    const context = this.contextOf(id, velocity);
-    let pitch = this.setup.speller.spell([context])[0] ?? spellKey(this.setup.speller.currentWindow(), key);
-    if (keyOf(pitch) !== key) pitch = spellKey(this.setup.speller.currentWindow(), key); // never trust a speller blindly
-    const tuned = this.table.tune(pitch);
+  private gatherNote(source: number, channel: number, key: number, velocity: number): void {
+    const gather = this.setup.gather ?? 0;
+    if (this.pending.length > 0) {
+      const late = gather === 'same-time' ? this.now !== this.pendingSince : this.now - this.pendingSince > gather;
+      if (late) this.flushChord();
+    }
+    if (this.pending.length === 0) this.pendingSince = this.now;
+    this.pending.push({ source, channel, key, velocity });
+    if (gather === 0) this.flushChord();
+  }
+
+  /** Spells the notes gathered so far as one chord and sounds them. */
+  private flushChord(): void {
+    if (this.pending.length === 0) return;
+    const notes = this.pending;
+    this.pending = [];
+    for (const n of notes) {
+      const id = inputId(n.source, n.channel, n.key);
+      if (this.down.has(id)) this.keyUp(id, 0); // a second note-on without its note-off: release the first
+    }
+    const contexts = notes.map((n) => this.contextOf(inputId(n.source, n.channel, n.key), n.velocity));
+    const pitches = this.setup.speller.spell(contexts);
+    notes.forEach((n, i) => {
+      let pitch = pitches[i] ?? spellKey(this.setup.speller.currentWindow(), n.key);
+      if (keyOf(pitch) !== n.key) pitch = spellKey(this.setup.speller.currentWindow(), n.key); // never trust a speller blindly
+      this.stats.notesIn++;
+      this.sound(inputId(n.source, n.channel, n.key), pitch, n.velocity);
+    });
+  }
+
+  /** Tunes, places and starts one note. */
+  private sound(id: number, pitch: SpelledPitch, velocity: number): void {
+    const key = id % 128;
+    const tuned = this.tableNow().tune(pitch);
     const placement = this.setup.output.place(tuned, this.now, this.context);
     if (!placement) {
       this.stats.notesDropped++;
@@ -252,15 +315,15 @@ export class Router {
     if (previous) this.handOver(previous); // re-strike the same synth key cleanly
     this.emit(noteOn(placement.channel, placement.key, velocity));
     this.stats.notesOut++;
-    const voice: Voice = { inputId: id, placement, slot, keyDown: true, silenced: false, latched: false };
+    const voice: Voice = { inputId: id, pitch, velocity, placement, slot, keyDown: true, silenced: false, latched: false };
     this.owners.set(slot, voice);
     this.down.set(id, voice);
     this.sounding.add(voice);
     this.setup.observer?.({
       type: 'note',
       time: this.now,
-      source,
-      inChannel: channel,
+      source: Math.floor(id / 2048),
+      inChannel: Math.floor(id / 128) % 16,
       inKey: key,
       velocity,
       pitch,
@@ -268,6 +331,48 @@ export class Router {
       cents: tuned.offset.cents,
       placement,
     });
+  }
+
+  private routerAction(action: RouterAction): void {
+    if (action === 'panic') this.doPanic('panic control');
+    else if (action === 'pass') this.passThrough = !this.passThrough;
+    else this.respell();
+  }
+
+  /**
+   * Respells what sounds now with the context as it is (a sustained chord after a flip, say).
+   * Where every voice of a tuning unit (a bend channel, an MTS slot or key class) changes the
+   * same way, the unit is retuned in place and the notes ring on; a held note that cannot be
+   * retuned in place is struck again in its new tuning.
+   */
+  private respell(): void {
+    const changes = new Map<number, Array<{ voice: Voice; pitch: SpelledPitch }>>();
+    const unchanged = new Set<number>();
+    for (const voice of this.sounding) {
+      const pitch = this.setup.speller.peek(this.contextOf(voice.inputId, voice.velocity));
+      const unit = this.setup.output.unitOf(voice.placement);
+      if (samePitch(pitch, voice.pitch) || keyOf(pitch) !== keyOf(voice.pitch)) {
+        unchanged.add(unit);
+        continue;
+      }
+      changes.set(unit, [...(changes.get(unit) ?? []), { voice, pitch }]);
+    }
+    const table = this.tableNow();
+    for (const [unit, list] of changes) {
+      const first = list[0]!;
+      const uniform = list.every((c) => c.pitch.fifths === first.pitch.fifths);
+      if (!unchanged.has(unit) && uniform && unit >= 0 && this.setup.output.retune(first.voice.placement, table.tune(first.pitch), this.context)) {
+        for (const c of list) c.voice.pitch = c.pitch;
+        continue;
+      }
+      for (const { voice, pitch } of list) {
+        if (!voice.keyDown) continue; // a note held only by the pedal cannot be struck again
+        this.silence(voice, 0);
+        this.down.delete(voice.inputId);
+        this.end(voice);
+        this.sound(voice.inputId, pitch, voice.velocity);
+      }
+    }
   }
 
   private keyUp(id: number, velocity: number): void {
@@ -440,6 +545,7 @@ export class Router {
 
   private doPanic(reason: string): void {
     this.stats.panics++;
+    this.pending = [];
     for (const voice of this.sounding) this.silence(voice, 0);
     for (const id of this.down.keys()) this.setup.speller.noteOff(this.contextOf(id, 0));
     this.owners.clear();

@@ -1,5 +1,6 @@
 import type { ScaleOctaveForm } from '../midi/mts.js';
 import { DEFAULT_WINDOW, type KeyboardWindow } from '../pitch/index.js';
+import type { ControlMap } from '../spelling/control-map.js';
 import { fixedSpeller, type Speller } from '../spelling/speller.js';
 import type { Reference, Tuning } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
@@ -33,6 +34,9 @@ export interface EngineOptions {
   readonly mtsProgram: number;
   readonly octaveForm: ScaleOctaveForm;
   readonly speller: Speller;
+  readonly controls?: ControlMap | undefined;
+  /** Chord gathering: milliseconds to wait live, or `'same-time'` for files. */
+  readonly gather?: number | 'same-time' | undefined;
   readonly observer?: ((event: RouterEvent) => void) | undefined;
 }
 
@@ -61,6 +65,8 @@ export function resolveEngineOptions(input: EngineOptionsInput): EngineOptions {
     mtsProgram: input.mtsProgram ?? 0,
     octaveForm: input.octaveForm ?? 2,
     speller: input.speller ?? fixedSpeller(input.window ?? DEFAULT_WINDOW),
+    controls: input.controls,
+    gather: input.gather,
     observer: input.observer,
   };
 }
@@ -114,7 +120,15 @@ export function createOutput(options: EngineOptions, table: PitchTable): OutputS
 export function createRouter(input: EngineOptionsInput): Router {
   const options = resolveEngineOptions(input);
   const table = new PitchTable(options.tuning, options.reference, options.synthA4);
-  return new Router({ table, speller: options.speller, output: createOutput(options, table), wheelRange: options.wheelRange, observer: options.observer });
+  return new Router({
+    table,
+    speller: options.speller,
+    output: createOutput(options, table),
+    wheelRange: options.wheelRange,
+    controls: options.controls,
+    gather: options.gather,
+    observer: options.observer,
+  });
 }
 
 /** Parses `2-16`, `1,3,5-8` (channels as a synth shows them, 1…16) into channels 0…15. */

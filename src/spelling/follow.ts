@@ -1,92 +1,176 @@
-import { keyboardWindow, nearestSpelling, onKey, type KeyboardWindow, type SpelledPitch } from '../pitch/index.js';
+import { onKey, pitchClass, spellChroma, spellKey, type KeyboardWindow, type PitchClass, type SpelledPitch } from '../pitch/index.js';
+import { isMajorLike, keySignatureOf, keyWindow, type DeclaredKey } from './keys.js';
 import { mod } from '../util/errors.js';
 import type { NoteContext, Speller } from './speller.js';
 
 /** Parameters of the following speller (all have defaults; the setup file may change them). */
 export interface FollowParameters {
-  /** Half-life of a note's weight in the running centre, in milliseconds. */
+  /** Half-life of a note's weight in the running estimate, in milliseconds. */
   readonly halfLifeMs: number;
-  /** Extra weight of each note still held, relative to a fresh note. */
+  /** Extra weight of each note while it is held, relative to a fresh note. */
   readonly heldWeight: number;
-  /** Fifths a chroma's new nearest spelling must win by before it replaces the last one used. */
+  /** How much better a new key must correlate (0…2) before it replaces the current one. */
   readonly hysteresis: number;
-  /** Where the centre starts, in fifths (2 ≈ between C and A: the middle of E♭..G♯). */
-  readonly initialCentre: number;
-  /** Weight of the starting centre, as if that many notes had been heard there. */
+  /** The key assumed at the start (C major), and its weight as if that many notes had been heard. */
+  readonly initialKey: Key;
   readonly initialWeight: number;
 }
 
+/** A key as the follower estimates it: a tonic on the line of fifths and a mode. */
+export interface Key {
+  readonly tonic: number;
+  readonly mode: 'major' | 'minor';
+}
+
 export const DEFAULT_FOLLOW: FollowParameters = {
-  halfLifeMs: 2500,
+  halfLifeMs: 4000,
   heldWeight: 1,
-  hysteresis: 0.5,
-  initialCentre: 2,
-  initialWeight: 2,
+  hysteresis: 0.02,
+  initialKey: { tonic: 0, mode: 'major' },
+  initialWeight: 4,
 };
 
 /**
- * Follows the harmony: a causal, time-decayed centre of the notes heard and held, on the line of
- * fifths (the family of Longuet-Higgins's, Temperley's and Chew & Chen's spellers). Each new note
- * takes the spelling of its key nearest the centre; a key keeps its last spelling unless the new
- * one is nearer by more than the hysteresis, so spellings do not flap when the centre sits
- * between two. Notes that begin together are spelled as one compact group.
+ * Key profiles of Krumhansl and Kessler (1982), as tabulated in Krumhansl, Cognitive Foundations
+ * of Musical Pitch (1990): the fit of each chroma above the tonic (from memory).
+ */
+const MAJOR_PROFILE = [6.35, 2.23, 3.48, 2.33, 4.38, 4.09, 2.52, 5.19, 2.39, 3.66, 2.29, 2.88];
+const MINOR_PROFILE = [6.33, 2.68, 3.52, 5.38, 2.6, 3.53, 2.54, 4.75, 3.98, 2.69, 3.34, 3.17];
+
+/** The flattest fifth of a key's diatonic set: major's tonic less one fifth, minor's less four. */
+export function signatureOf(key: Key): number {
+  return keySignatureOf(asDeclared(key));
+}
+
+function asDeclared(key: Key): DeclaredKey {
+  return { tonic: pitchClass(key.tonic), mode: key.mode };
+}
+
+function correlation(weights: readonly number[], profile: readonly number[], tonicChroma: number): number {
+  const n = 12;
+  const wMean = weights.reduce((a, b) => a + b, 0) / n;
+  const pMean = profile.reduce((a, b) => a + b, 0) / n;
+  let num = 0;
+  let wVar = 0;
+  let pVar = 0;
+  for (let i = 0; i < n; i++) {
+    const w = weights[(tonicChroma + i) % n]! - wMean;
+    const p = profile[i]! - pMean;
+    num += w * p;
+    wVar += w * w;
+    pVar += p * p;
+  }
+  return wVar === 0 ? 0 : num / Math.sqrt(wVar * pVar);
+}
+
+/**
+ * Follows the harmony causally. It keeps a time-decayed weight per key (chroma) of the notes
+ * heard, plus the notes held, and finds the key that fits them best (Krumhansl–Schmuckler key
+ * finding); each new note is spelled in that key's 12-note window: its diatonic set plus the
+ * lowered and raised degrees usual in the mode. Working from chromas rather than from spelled
+ * notes, the estimate cannot drift by feeding on its own spellings; of the enharmonic
+ * equivalents of the best tonic it takes the one nearest the last on the line of fifths, and it
+ * changes key only when the new one fits clearly better (hysteresis). This places the
+ * line-of-fifths centre of Longuet-Higgins's, Temperley's and Chew & Chen's spellers at the key.
  */
 export class FollowSpeller implements Speller {
-  private sum: number;
-  private weight: number;
+  private readonly weights: number[] = new Array<number>(12).fill(0);
   private lastTime = 0;
+  private current: Key;
   private readonly held = new Map<number, number>();
-  private readonly lastSpelling = new Map<number, number>();
+  private frozen = false;
 
   constructor(private readonly p: FollowParameters = DEFAULT_FOLLOW) {
-    this.sum = p.initialCentre * p.initialWeight;
-    this.weight = p.initialWeight;
+    this.current = p.initialKey;
+    this.believe(p.initialKey);
+  }
+
+  /** Starts over in `key`, as if `initialWeight` notes had been heard in it. */
+  private believe(key: Key): void {
+    this.current = key;
+    const profile = key.mode === 'major' ? MAJOR_PROFILE : MINOR_PROFILE;
+    const tonicChroma = chromaAt(key.tonic);
+    const total = profile.reduce((a, b) => a + b, 0);
+    profile.forEach((v, i) => (this.weights[(tonicChroma + i) % 12] = (this.p.initialWeight * v) / total));
+  }
+
+  setKey(key: DeclaredKey): void {
+    this.believe({ tonic: key.tonic.fifths, mode: isMajorLike(key.mode) ? 'major' : 'minor' });
+  }
+
+  setFrozen(frozen: boolean): void {
+    this.frozen = frozen;
+  }
+
+  currentTonic(): PitchClass {
+    return pitchClass(this.current.tonic);
   }
 
   private decayTo(time: number): void {
-    if (time > this.lastTime) {
-      const factor = 0.5 ** ((time - this.lastTime) / this.p.halfLifeMs);
-      this.sum *= factor;
-      this.weight *= factor;
-      this.lastTime = time;
-    }
+    if (time <= this.lastTime) return;
+    const factor = 0.5 ** ((time - this.lastTime) / this.p.halfLifeMs);
+    for (let i = 0; i < 12; i++) this.weights[i]! *= factor;
+    this.lastTime = time;
   }
 
-  /** The current centre on the line of fifths. */
-  centre(): number {
-    let sum = this.sum;
-    let weight = this.weight;
-    for (const f of this.held.values()) {
-      sum += this.p.heldWeight * f;
-      weight += this.p.heldWeight;
+  private update(): void {
+    const weights = [...this.weights];
+    for (const chroma of this.held.values()) weights[chroma]! += this.p.heldWeight;
+    const score = (k: Key): number => correlation(weights, k.mode === 'major' ? MAJOR_PROFILE : MINOR_PROFILE, chromaAt(k.tonic));
+    const currentScore = score(this.current);
+    let best = this.current;
+    let bestScore = currentScore;
+    for (let chroma = 0; chroma < 12; chroma++) {
+      for (const mode of ['major', 'minor'] as const) {
+        const candidate = this.nearestSpelledKey(chroma, mode);
+        const s = score(candidate);
+        if (s > bestScore) {
+          best = candidate;
+          bestScore = s;
+        }
+      }
     }
-    return weight > 0 ? sum / weight : this.p.initialCentre;
+    if (bestScore - currentScore > this.p.hysteresis) this.current = best;
   }
 
-  private choose(chroma: number, centre: number): number {
-    const nearest = nearestSpelling(chroma, centre).fifths;
-    const last = this.lastSpelling.get(chroma);
-    if (last === undefined || last === nearest) return nearest;
-    return Math.abs(nearest - centre) + this.p.hysteresis < Math.abs(last - centre) ? nearest : last;
+  /**
+   * The spelling of a key (tonic chroma and mode) as written: at most seven sharps or flats in its
+   * signature, and of two such spellings (F♯ or G♭ major) the one nearer the current key.
+   */
+  private nearestSpelledKey(tonicChroma: number, mode: Key['mode']): Key {
+    const base = mod(7 * tonicChroma, 12);
+    let best: Key | undefined;
+    for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
+      const key: Key = { tonic, mode };
+      if (Math.abs(signatureOf(key) + 1) > 7) continue;
+      if (!best || Math.abs(signatureOf(key) - signatureOf(this.current)) < Math.abs(signatureOf(best) - signatureOf(this.current))) best = key;
+    }
+    return best ?? { tonic: base, mode };
+  }
+
+  /** The key the speller believes it is in. */
+  get key(): Key {
+    return this.current;
   }
 
   spell(notes: readonly NoteContext[]): SpelledPitch[] {
     if (notes.length === 0) return [];
-    this.decayTo(notes[0]!.time);
-    const centre = this.centre();
-    let fifths = notes.map((n) => this.choose(mod(n.key, 12), centre));
-    // A group must stay compact: if it spans more than 11 fifths, respell it inside the
-    // 12-note window around the centre.
-    if (Math.max(...fifths) - Math.min(...fifths) > 11) fifths = notes.map((n) => nearestSpelling(mod(n.key, 12), centre).fifths);
-    const result = notes.map((n, i) => onKey({ fifths: fifths[i]! }, n.key));
-    notes.forEach((n, i) => {
-      const f = fifths[i]!;
-      this.lastSpelling.set(mod(n.key, 12), f);
-      this.held.set(noteId(n), f);
-      this.sum += f;
-      this.weight += 1;
+    if (!this.frozen) {
+      this.decayTo(notes[0]!.time);
+      for (const n of notes) this.weights[mod(n.key, 12)]! += 1;
+      this.update();
+    }
+    // The whole group counts before any of it is spelled, and all of it takes one window:
+    // notes that begin together are spelled together, as a compact group.
+    const window = this.currentWindow();
+    return notes.map((n) => {
+      this.held.set(noteId(n), mod(n.key, 12));
+      return onKey(spellChroma(window, mod(n.key, 12)), n.key);
     });
-    return result;
+  }
+
+  peek(note: NoteContext): SpelledPitch {
+    return spellKey(this.currentWindow(), note.key);
   }
 
   noteOff(note: NoteContext): void {
@@ -94,8 +178,12 @@ export class FollowSpeller implements Speller {
   }
 
   currentWindow(): KeyboardWindow {
-    return keyboardWindow(Math.round(this.centre() - 5.5));
+    return keyWindow(asDeclared(this.current));
   }
+}
+
+function chromaAt(fifths: number): number {
+  return mod(7 * fifths, 12);
 }
 
 function noteId(n: NoteContext): number {

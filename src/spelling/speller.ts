@@ -1,4 +1,5 @@
-import { DEFAULT_WINDOW, spellKey, type KeyboardWindow, type SpelledPitch } from '../pitch/index.js';
+import { DEFAULT_WINDOW, spellKey, type KeyboardWindow, type PitchClass, type SpelledPitch } from '../pitch/index.js';
+import { keyWindow, type DeclaredKey } from './keys.js';
 
 /** What a speller knows of a note as it arrives. */
 export interface NoteContext {
@@ -17,16 +18,63 @@ export interface NoteContext {
  */
 export interface Speller {
   spell(notes: readonly NoteContext[]): SpelledPitch[];
+  /** The spelling a note would take now, without hearing it (to respell held notes). */
+  peek(note: NoteContext): SpelledPitch;
   noteOff(note: NoteContext): void;
   /** The 12 spellings new notes would get now (for 12-class outputs and displays). */
   currentWindow(): KeyboardWindow;
+  /** The tonic of the context, for tunings built on one (just intonation); undefined: the tuning's own. */
+  currentTonic(): PitchClass | undefined;
+  /** Jumps to a declared key (a control action). */
+  setKey(key: DeclaredKey): void;
+  /** While frozen the context holds still: nothing heard moves it. */
+  setFrozen(frozen: boolean): void;
 }
 
-/** The simplest speller: every key always takes its spelling in one 12-note window. */
+/**
+ * `fixed`: every key takes its spelling in one 12-note window; `key`: the window of a declared key
+ * (whose tonic also moves a just table). Setting a key turns either into the key's window.
+ */
+export class WindowSpeller implements Speller {
+  private window: KeyboardWindow;
+  private tonic: PitchClass | undefined;
+
+  constructor(windowOrKey: KeyboardWindow | DeclaredKey = DEFAULT_WINDOW) {
+    if ('kind' in windowOrKey) {
+      this.window = windowOrKey;
+      this.tonic = undefined;
+    } else {
+      this.window = keyWindow(windowOrKey);
+      this.tonic = windowOrKey.tonic;
+    }
+  }
+
+  spell(notes: readonly NoteContext[]): SpelledPitch[] {
+    return notes.map((n) => this.peek(n));
+  }
+
+  peek(note: NoteContext): SpelledPitch {
+    return spellKey(this.window, note.key);
+  }
+
+  noteOff(): void {}
+
+  currentWindow(): KeyboardWindow {
+    return this.window;
+  }
+
+  currentTonic(): PitchClass | undefined {
+    return this.tonic;
+  }
+
+  setKey(key: DeclaredKey): void {
+    this.window = keyWindow(key);
+    this.tonic = key.tonic;
+  }
+
+  setFrozen(): void {}
+}
+
 export function fixedSpeller(window: KeyboardWindow = DEFAULT_WINDOW): Speller {
-  return {
-    spell: (notes) => notes.map((n) => spellKey(window, n.key)),
-    noteOff: () => undefined,
-    currentWindow: () => window,
-  };
+  return new WindowSpeller(window);
 }

@@ -50,7 +50,7 @@ describe('diesis render', () => {
     ['mts-note', ['--mode', 'mts-note', '--channels', '1'], 0.0031],
   ] as const)('writes a corpus movement in quarter-comma meantone that sounds in tune: %s', async (_name, extra, tolerance) => {
     const output = join(dir, `out-${_name.replace(/\W+/gu, '-')}.mid`);
-    const result = await runCli('render', input, '-o', output, '--tuning', 'meantone-1-4', ...extra);
+    const result = await runCli('render', input, '-o', output, '--tuning', 'meantone-1-4', '--spelling', 'fixed', ...extra);
     expect(result.stderr).toBe('');
     expect(result.code).toBe(0);
     expect(result.stdout).toMatch(/notes\s+2062 in, 2062 out/u);
@@ -62,7 +62,7 @@ describe('diesis render', () => {
 
   it('honours the reference, the window and the tuning options', async () => {
     const output = join(dir, 'wm3-415.mid');
-    const result = await runCli('render', input, '-o', output, '-t', 'werckmeister-3', '--ref', 'A4=415', '--layout', 'multi', '--bend-range', '2', '--release-guard', '100');
+    const result = await runCli('render', input, '-o', output, '-t', 'werckmeister-3', '--ref', 'A4=415', '--layout', 'multi', '--bend-range', '2', '--release-guard', '100', '--spelling', 'fixed');
     expect(result.code).toBe(0);
     expect(result.stdout).toContain('Werckmeister III at A4=415 Hz');
     expect(audit(input, output, 'werckmeister-3', parseReference('A4=415'), 100).worst).toBeLessThan(0.0123);

@@ -3,5 +3,13 @@ import type { NoteContext, Speller } from '../../src/spelling/speller.js';
 
 /** A speller whose choices the test dictates, note by note. */
 export function scriptedSpeller(choose: (note: NoteContext) => SpelledPitch): Speller {
-  return { spell: (notes) => notes.map(choose), noteOff: () => undefined, currentWindow: () => DEFAULT_WINDOW };
+  return {
+    spell: (notes) => notes.map(choose),
+    peek: choose,
+    noteOff: () => undefined,
+    currentWindow: () => DEFAULT_WINDOW,
+    currentTonic: () => undefined,
+    setKey: () => undefined,
+    setFrozen: () => undefined,
+  };
 }

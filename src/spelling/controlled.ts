@@ -1,0 +1,93 @@
+import { chromaOf, keyboardWindow, onKey, spellChroma, type KeyboardWindow, type PitchClass, type SpelledPitch } from '../pitch/index.js';
+import { mod } from '../util/errors.js';
+import type { DeclaredKey } from './keys.js';
+import type { NoteContext, Speller } from './speller.js';
+
+/** A split-key entry: notes from this input channel (and source), on one key or all keys, take a fixed spelling or window. */
+export interface SplitKey {
+  /** Input channel 0…15; undefined matches any. */
+  readonly channel: number | undefined;
+  /** Input source (device) number; undefined matches any. */
+  readonly source: number | undefined;
+  /** A key 0…127, or undefined for every key of that channel/source. */
+  readonly key: number | undefined;
+  /** The spelling for that key (a pitch class), or a window for the whole channel. */
+  readonly spelling: PitchClass | KeyboardWindow;
+}
+
+export type Force = 'sharps' | 'flats' | undefined;
+
+const BLACK = new Set([1, 3, 6, 8, 10]);
+/** Every black key as a sharp (F..A♯) or as a flat (G♭..B). */
+const SHARPS_WINDOW = keyboardWindow(-1);
+const FLATS_WINDOW = keyboardWindow(-6);
+
+/**
+ * The player's overrides over a spelling strategy: a flip (black keys take their other spelling),
+ * a window shift, forced sharps or flats, freezing, setting a key, and split-key maps that give a
+ * second manual or extra keys the alternates. The strategy still hears every note.
+ */
+export class ControlledSpeller implements Speller {
+  flip = false;
+  shift = 0;
+  force: Force = undefined;
+
+  constructor(
+    readonly base: Speller,
+    private readonly splits: readonly SplitKey[] = [],
+  ) {}
+
+  private split(note: NoteContext): SpelledPitch | undefined {
+    for (const s of this.splits) {
+      if (s.channel !== undefined && s.channel !== note.channel) continue;
+      if (s.source !== undefined && s.source !== note.source) continue;
+      if (s.key !== undefined && s.key !== note.key) continue;
+      const pc = 'kind' in s.spelling ? spellChroma(s.spelling, mod(note.key, 12)) : s.spelling;
+      if (chromaOf(pc) === mod(note.key, 12)) return onKey(pc, note.key);
+    }
+    return undefined;
+  }
+
+  private adjust(note: NoteContext, pitch: SpelledPitch): SpelledPitch {
+    const chroma = mod(note.key, 12);
+    const window = this.currentWindow();
+    let pc: PitchClass = this.force !== undefined || this.shift !== 0 ? spellChroma(window, chroma) : pitch;
+    if (this.flip && BLACK.has(chroma)) {
+      const middle = window.lowest + 5.5;
+      pc = { fifths: pc.fifths > middle ? pc.fifths - 12 : pc.fifths + 12 };
+    }
+    return onKey(pc, note.key);
+  }
+
+  spell(notes: readonly NoteContext[]): SpelledPitch[] {
+    const heard = this.base.spell(notes);
+    return notes.map((n, i) => this.split(n) ?? this.adjust(n, heard[i]!));
+  }
+
+  peek(note: NoteContext): SpelledPitch {
+    return this.split(note) ?? this.adjust(note, this.base.peek(note));
+  }
+
+  noteOff(note: NoteContext): void {
+    this.base.noteOff(note);
+  }
+
+  currentWindow(): KeyboardWindow {
+    if (this.force === 'sharps') return SHARPS_WINDOW;
+    if (this.force === 'flats') return FLATS_WINDOW;
+    return keyboardWindow(this.base.currentWindow().lowest + this.shift);
+  }
+
+  currentTonic(): PitchClass | undefined {
+    return this.base.currentTonic();
+  }
+
+  setKey(key: DeclaredKey): void {
+    this.shift = 0;
+    this.base.setKey(key);
+  }
+
+  setFrozen(frozen: boolean): void {
+    this.base.setFrozen(frozen);
+  }
+}
