@@ -4,6 +4,7 @@ import { registerChart } from './chart-command.js';
 import type { CommandIo } from './io.js';
 import { registerPresetCommands } from './preset-commands.js';
 import { registerRender } from './render-command.js';
+import { registerSpell } from './spell-command.js';
 
 const VERSION = '0.1.0';
 
@@ -20,6 +21,7 @@ export function buildProgram(io: CommandIo): Command {
   registerChart(program, io);
   registerPresetCommands(program, io);
   registerRender(program, io);
+  registerSpell(program, io);
   for (const command of program.commands) command.exitOverride().configureOutput(program.configureOutput());
   return program;
 }

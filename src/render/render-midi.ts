@@ -27,19 +27,37 @@ export interface RenderSummary {
  * time; at the last tick every key and pedal is let go, and once the release guard has passed a
  * panic closes the file, so nothing is left sounding or bent and no release tail is retuned.
  */
-export function renderEvents(content: MidiFileContent, router: Router, releaseGuardMs: number): { messages: TickedMessage[]; summary: RenderSummary } {
+export function renderEvents(
+  content: MidiFileContent,
+  router: Router,
+  releaseGuardMs: number,
+  /** Told the tick each batch of output belongs to, before it is produced (for observers). */
+  atTick: (tick: number) => void = () => undefined,
+): { messages: TickedMessage[]; summary: RenderSummary } {
   const messages: TickedMessage[] = router.start(0).map((m) => ({ tick: 0, data: m.data }));
   let bytesIn = 0;
   let bytesOut = 0;
   let lastTime = 0;
+  let lastTick = 0;
+  const take = (tick: number, out: ReadonlyArray<{ data: readonly number[] }>): void => {
+    for (const m of out) {
+      bytesOut += m.data.length;
+      messages.push({ tick, data: m.data });
+    }
+  };
   for (const event of content.events) {
+    if (event.time !== lastTime) {
+      atTick(lastTick);
+      take(lastTick, router.flush(lastTime)); // the chord of the previous onset time, at its own tick
+    }
     bytesIn += event.data.length;
     lastTime = event.time;
-    for (const m of router.process(event.time, event.data)) {
-      bytesOut += m.data.length;
-      messages.push({ tick: event.tick, data: m.data });
-    }
+    lastTick = event.tick;
+    atTick(event.tick);
+    take(event.tick, router.process(event.time, event.data));
   }
+  atTick(lastTick);
+  take(lastTick, router.flush(lastTime));
   for (const m of router.releaseAll(lastTime)) messages.push({ tick: content.lastTick, data: m.data });
   const closingTick = content.lastTick + Math.ceil(releaseGuardMs / content.msPerTickAtEnd);
   for (const m of router.panic(lastTime + releaseGuardMs, 'end of file')) messages.push({ tick: closingTick, data: m.data });

@@ -31,6 +31,7 @@ export const ACTIVE_SENSING_TIMEOUT_MS = 300;
 /** What the router decided, for displays and logs (never needed for the output itself). */
 export type RouterEvent =
   | { readonly type: 'note'; readonly time: number; readonly source: number; readonly inChannel: number; readonly inKey: number; readonly velocity: number; readonly pitch: SpelledPitch; readonly hz: number; readonly cents: number; readonly placement: Placement }
+  | { readonly type: 'key-up'; readonly time: number; readonly source: number; readonly inChannel: number; readonly inKey: number }
   | { readonly type: 'note-dropped'; readonly time: number; readonly inKey: number; readonly reason: string }
   | { readonly type: 'out-of-range'; readonly time: number; readonly pitch: SpelledPitch; readonly neededCents: number }
   | { readonly type: 'steal'; readonly time: number; readonly voices: number }
@@ -174,6 +175,11 @@ export class Router {
       parser.feed(bytes, (message) => this.handle(message, source));
       this.stats.malformedBytes += parser.dropped - droppedBefore;
     });
+  }
+
+  /** Spells and sounds a chord still being gathered (files call it when the next onset time begins). */
+  flush(time: number): TimedMessage[] {
+    return this.collect(time, () => this.flushChord());
   }
 
   /** Lets time pass without input: the active-sensing timeout. Call every few tens of ms live. */
@@ -379,7 +385,9 @@ export class Router {
     const voice = this.down.get(id);
     if (!voice) return;
     this.down.delete(id);
-    this.setup.speller.noteOff(this.contextOf(id, velocity));
+    const context = this.contextOf(id, velocity);
+    this.setup.speller.noteOff(context);
+    this.setup.observer?.({ type: 'key-up', time: this.now, source: context.source, inChannel: context.channel, inKey: context.key });
     if (voice.silenced) return;
     voice.keyDown = false;
     this.silence(voice, velocity);
