@@ -1,13 +1,13 @@
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { readMidiFile, type MidiFileContent } from '../src/render/smf.js';
+import { packageRoot } from '../src/util/package-root.js';
 
 /**
  * The open corpus beside the project (../shared/corpus/mozart): Mozart piano sonatas, derived from
  * Craig Stuart Sapp's digital edition of the Alte Mozart-Ausgabe, CC BY-NC-SA 4.0 (its LICENSE.md).
  */
-export const CORPUS_DIR = join(fileURLToPath(new URL('.', import.meta.url)), '..', '..', '..', 'shared', 'corpus', 'mozart');
+export const CORPUS_DIR = join(packageRoot(), '..', 'shared', 'corpus', 'mozart');
 
 export interface Movement {
   readonly name: string;

@@ -1,6 +1,6 @@
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
-import { basename, dirname, join, resolve, sep } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { basename, join, resolve, sep } from 'node:path';
+import { packageRoot } from '../util/package-root.js';
 import { chromaOf, formatPitchClass, parsePitchClass, pitchClass, type PitchClass } from '../pitch/index.js';
 import {
   chainToChromaSizes,
@@ -31,17 +31,6 @@ export interface TuningPreset {
   readonly source: string;
   readonly reference: Reference | undefined;
   readonly tuning: Tuning;
-}
-
-/** The package's own folder: the nearest ancestor of this module holding package.json (src/ under the tests, dist/ when built). */
-function packageRoot(): string {
-  let dir = dirname(fileURLToPath(import.meta.url));
-  while (!existsSync(join(dir, 'package.json'))) {
-    const parent = dirname(dir);
-    if (parent === dir) throw new Error('diesis: cannot find the package folder');
-    dir = parent;
-  }
-  return dir;
 }
 
 /** The folder of built-in presets. */

@@ -1,0 +1,103 @@
+import { describe, expect, it } from 'vitest';
+import { formatSpelledPitch, parseSpelledPitch, keyOf } from '../../src/pitch/index.js';
+import { FollowSpeller } from '../../src/spelling/follow.js';
+import { parseKey } from '../../src/spelling/keys.js';
+import { createStrategy } from '../../src/spelling/strategy.js';
+import type { Speller } from '../../src/spelling/speller.js';
+
+/**
+ * Plays chords (lists of note names, one every `beatMs`) into a speller, each held until the next;
+ * returns what it spelled. The examples are the project's own short progressions.
+ */
+function play(speller: Speller, chords: string[][], beatMs = 500): string[][] {
+  let time = 0;
+  let held: number[] = [];
+  return chords.map((names) => {
+    for (const key of held) speller.noteOff({ key, velocity: 0, time, channel: 0, source: 0 });
+    const notes = names.map((n) => ({ key: keyOf(parseSpelledPitch(n)), velocity: 80, time, channel: 0, source: 0 }));
+    held = notes.map((n) => n.key);
+    const spelled = speller.spell(notes).map((p) => formatSpelledPitch(p));
+    time += beatMs;
+    return spelled;
+  });
+}
+
+const follow = () => new FollowSpeller();
+
+describe('follow: spelling from the harmony heard', () => {
+  it('spells the leading tone of a cadence in A minor as G♯', () => {
+    // i – iv – V – i, written with the enharmonics a keyboard cannot show: the key number is what counts.
+    const out = play(follow(), [['A3', 'C4', 'E4'], ['D3', 'F4', 'A4'], ['E3', 'Ab4', 'B4'], ['A3', 'C4', 'E4']]);
+    expect(out[2]).toEqual(['E3', 'G#4', 'B4']);
+  });
+
+  it('spells the same key as A♭ in C minor', () => {
+    const out = play(follow(), [['C3', 'Eb4', 'G4'], ['F3', 'Ab4', 'C5'], ['G3', 'B4', 'D5'], ['C3', 'Eb4', 'G4'], ['F3', 'G#4', 'C5']]);
+    expect(out[1]).toEqual(['F3', 'Ab4', 'C5']);
+    expect(out[4]).toEqual(['F3', 'Ab4', 'C5']);
+    expect(out[2]).toEqual(['G3', 'B4', 'D5']);
+  });
+
+  it('gives an E major triad G♯ and a D♭ major triad A♭ and D♭', () => {
+    expect(play(follow(), [['E3', 'Ab3', 'B3'], ['E3', 'Ab3', 'B3']])[1]).toEqual(['E3', 'G#3', 'B3']);
+    expect(play(follow(), [['C#3', 'F3', 'G#3'], ['C#4', 'F4', 'G#4']])[1]).toEqual(['Db4', 'F4', 'Ab4']);
+  });
+
+  it('spells a lament bass in D minor with the raised seventh and the minor sixth', () => {
+    const speller = follow();
+    play(speller, [['D3', 'F4', 'A4'], ['A2', 'E4', 'C#5'], ['D3', 'F4', 'A4']]);
+    const line = play(speller, [['D3'], ['Db3'], ['C3'], ['B2'], ['A#2'], ['A2']], 400).map((c) => c[0]);
+    expect(line).toEqual(['D3', 'C#3', 'C3', 'B2', 'Bb2', 'A2']);
+  });
+
+  it('is dragged along by a modulation round the circle of fifths, and back', () => {
+    const speller = follow();
+    const cadence = (tonic: string, third: string, fifth: string, dom: string, leading: string, domFifth: string) => [
+      [tonic, third, fifth],
+      [dom, leading, domFifth],
+      [tonic, third, fifth],
+    ];
+    // C, G, D, A, E, B, F♯ major, each by its own V–I: the sharps pile up, E♯ appears in F♯.
+    const keys: Array<[string, string, string, string, string, string]> = [
+      ['C3', 'E3', 'G3', 'G2', 'B2', 'D3'],
+      ['G3', 'B3', 'D4', 'D3', 'F#3', 'A3'],
+      ['D3', 'F#3', 'A3', 'A2', 'C#3', 'E3'],
+      ['A2', 'C#3', 'E3', 'E2', 'G#2', 'B2'],
+      ['E3', 'G#3', 'B3', 'B2', 'D#3', 'F#3'],
+      ['B2', 'D#3', 'F#3', 'F#2', 'A#2', 'C#3'],
+      ['F#3', 'A#3', 'C#4', 'C#3', 'E#3', 'G#3'],
+    ];
+    let last: string[][] = [];
+    for (const k of keys) last = play(speller, cadence(...k));
+    expect(last[1]).toEqual(['C#3', 'E#3', 'G#3']);
+    expect(last[2]).toEqual(['F#3', 'A#3', 'C#4']);
+    // Back home: a few bars of C major and F is F again, not E♯.
+    for (let i = 0; i < 4; i++) last = play(speller, cadence(...keys[0]!));
+    expect(play(speller, [['F3', 'A3', 'C4']])[0]).toEqual(['F3', 'A3', 'C4']);
+  });
+
+  it('keeps its key when frozen, and jumps when told a key', () => {
+    const speller = follow();
+    speller.setKey(parseKey('Eb major'));
+    expect(play(speller, [['Ab3']])[0]).toEqual(['Ab3']);
+    speller.setFrozen(true);
+    play(speller, Array.from({ length: 20 }, () => ['E3', 'G#3', 'B3']));
+    expect(play(speller, [['Ab3']])[0]).toEqual(['Ab3']);
+    speller.setFrozen(false);
+    play(speller, Array.from({ length: 20 }, () => ['E3', 'G#3', 'B3']));
+    expect(play(speller, [['Ab3']])[0]).toEqual(['G#3']);
+  });
+});
+
+describe('fixed and key strategies', () => {
+  it('fixed: one window, whatever is played', () => {
+    const speller = createStrategy({ strategy: 'fixed' });
+    expect(play(speller, [['C#4', 'G#4', 'D#4', 'A#4']])[0]).toEqual(['C#4', 'G#4', 'Eb4', 'Bb4']);
+  });
+
+  it('key: the declared key’s window, and its tonic for just intonation', () => {
+    const speller = createStrategy({ strategy: 'key', key: parseKey('F# minor') });
+    expect(play(speller, [['E#4', 'D4', 'A#4', 'B#4']])[0]).toEqual(['E#4', 'D4', 'A#4', 'B#4']);
+    expect(speller.currentTonic()).toEqual({ fifths: 6 });
+  });
+});
