@@ -1,7 +1,8 @@
 import type { Command } from 'commander';
 import { existsSync, readFileSync } from 'node:fs';
 import { relative } from 'node:path';
-import { formatProblem } from '../presets/problems.js';
+import { formatProblem, parseJsonText } from '../presets/problems.js';
+import { checkSetup } from '../presets/setup-file.js';
 import { checkTuningPreset, loadBuiltInTuningPresets, PRESETS_DIR } from '../presets/tuning-presets.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from './io.js';
@@ -39,13 +40,19 @@ export function registerPresetCommands(program: Command, io: CommandIo): void {
 
   program
     .command('check')
-    .description('validate a tuning file and print every problem in it')
-    .argument('<file>', 'a tuning .json file')
+    .description('validate a tuning or setup file and print every problem in it')
+    .argument('<file>', 'a tuning or setup .json file (a tuning has a "kind")')
     .action((file: string) => {
       if (!existsSync(file)) throw new UserError(`${file}: no such file`);
-      const check = checkTuningPreset(readFileSync(file, 'utf8'), file);
-      if (check.preset) {
-        io.stdout.write(`${file}: ok: ${check.preset.name} (${check.preset.kind})\n`);
+      const text = readFileSync(file, 'utf8');
+      const isTuning = (() => {
+        const json = parseJsonText(text, file);
+        return typeof json === 'object' && json !== null && 'kind' in json;
+      })();
+      const check = isTuning ? checkTuningPreset(text, file) : checkSetup(text, file);
+      const ok = 'preset' in check ? check.preset && `${check.preset.name} (${check.preset.kind})` : check.setup && `setup${check.setup.json.name ? ` "${check.setup.json.name}"` : ''}`;
+      if (ok) {
+        io.stdout.write(`${file}: ok: ${ok}\n`);
         return;
       }
       for (const problem of check.problems) io.stderr.write(formatProblem(file, problem) + '\n');

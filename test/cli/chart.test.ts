@@ -93,6 +93,19 @@ describe('diesis presets and check', () => {
     expect(json.map((p) => p.id)).toContain('meantone-1-4');
   });
 
+  it('validates the shipped setup files, and names the path of a setup’s problems', async () => {
+    for (const f of ['mpe-synth', 'multitimbral-sampler', 'mts-synth']) expect((await runCli('check', `presets/setups/${f}.json`)).code, f).toBe(0);
+    const { writeFileSync, mkdtempSync } = await import('node:fs');
+    const { join } = await import('node:path');
+    const { tmpdir } = await import('node:os');
+    const file = join(mkdtempSync(join(tmpdir(), 'diesis-')), 'setup.json');
+    writeFileSync(file, JSON.stringify({ output: { mode: 'bend', bendRange: 500 }, controls: [{ cc: 4, action: 'wiggle' }] }));
+    const bad = await runCli('check', file);
+    expect(bad.code).toBe(1);
+    expect(bad.stderr).toMatch(/\$\.output\.bendRange: /u);
+    expect(bad.stderr).toMatch(/\$\.controls\[0\]\.action: /u);
+  });
+
   it('validates a good file and prints every problem of a bad one', async () => {
     expect(await runCli('check', 'presets/meantone-1-4.json')).toMatchObject({ code: 0, stdout: 'presets/meantone-1-4.json: ok: 1/4-comma meantone (regular)\n' });
     const bad = await runCli('check', 'test/fixtures/bad-tuning.json');
