@@ -6,7 +6,7 @@ import { DEFAULT_WINDOW, spellKey } from '../../src/pitch/index.js';
 import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
 import { A440, frequency, parseReference, type Reference } from '../../src/tuning/index.js';
 import { readWithIndependentParser } from '../support/smf-reader.js';
-import { malformation, SynthModel } from '../support/synth-model.js';
+import { malformation, SynthModel } from '../../src/synth/reference-synth.js';
 import { runCli } from './run-cli.js';
 
 // Mozart piano sonatas, derived from Craig Stuart Sapp's digital edition of the Alte Mozart-Ausgabe,

@@ -4,7 +4,7 @@ import { bendSensitivity, mpeConfiguration, pitchBend } from '../../src/midi/byt
 import { channelMask, decodeFrequency, encodeFrequency, scaleOctaveTuning, singleNoteTuning } from '../../src/midi/mts.js';
 import { MidiStreamParser } from '../../src/midi/parser.js';
 import { bendStepCents, bendToCents, centsToBend } from '../../src/midi/pitch-bend.js';
-import { malformation } from '../support/synth-model.js';
+import { malformation } from '../../src/synth/reference-synth.js';
 
 describe('pitch bend (MIDI 1.0: 14 bits, LSB first, 8192 = centre)', () => {
   it('encodes centre, extremes and clamps beyond the range', () => {

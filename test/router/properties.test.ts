@@ -6,7 +6,7 @@ import { createRouter, type EngineOptionsInput } from '../../src/router/setup.js
 import { parseReference } from '../../src/tuning/index.js';
 import { Rig } from '../support/rig.js';
 import { scriptedSpeller } from '../support/spellers.js';
-import { malformation } from '../support/synth-model.js';
+import { malformation } from '../../src/synth/reference-synth.js';
 
 type Command =
   | { t: 'on'; key: number; velocity: number; spelling: number }

@@ -3,7 +3,7 @@ import { DEFAULT_WINDOW, spellKey, type KeyboardWindow, type SpelledPitch } from
 import { createRouter, resolveEngineOptions, type EngineOptionsInput } from '../../src/router/setup.js';
 import type { Router, RouterEvent } from '../../src/router/router.js';
 import { frequency } from '../../src/tuning/index.js';
-import { malformation, SynthModel, type ModelVoice } from './synth-model.js';
+import { malformation, SynthModel, type ModelVoice } from '../../src/synth/reference-synth.js';
 
 export interface VoiceTag {
   readonly pitch: SpelledPitch;

@@ -1,5 +1,7 @@
 /**
- * A reference synth for the tests, written from the documents rather than from the engine:
+ * A reference synth: what a real synth does with the messages diesis sends, written from the
+ * documents rather than from the engine (the tests check the engine against it; the demo and
+ * virtual ports sound through it):
  * - MIDI 1.0 Detailed Specification: note on/off (velocity 0 = off), control change, sustain (64,
  *   on at ≥ 64), sostenuto (66), All Sound Off (120), Reset All Controllers (121, which centres
  *   pitch bend and lifts pedals per RP-015), All Notes Off (123, obeying sustain), RPN 0 pitch-bend
@@ -25,7 +27,7 @@ export interface ModelVoice {
   state: VoiceState;
   latched: boolean;
   endTime: number;
-  /** Free for the test to attach what it expects of this voice. */
+  /** Free for a caller (a test, a display) to attach what it knows of this voice. */
   tag: unknown;
 }
 
