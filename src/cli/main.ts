@@ -1,10 +1,12 @@
 import { Command, CommanderError } from 'commander';
+import { disableMidi } from '../io/midi-system.js';
 import { UserError } from '../util/errors.js';
 import { registerChart } from './chart-command.js';
 import type { CommandIo } from './io.js';
 import { registerPresetCommands } from './preset-commands.js';
 import { registerRender } from './render-command.js';
 import { registerSpell } from './spell-command.js';
+import { registerPlay } from './play-command.js';
 
 const VERSION = '0.1.0';
 
@@ -22,6 +24,7 @@ export function buildProgram(io: CommandIo): Command {
   registerPresetCommands(program, io);
   registerRender(program, io);
   registerSpell(program, io);
+  registerPlay(program, io);
   for (const command of program.commands) command.exitOverride().configureOutput(program.configureOutput());
   return program;
 }
@@ -40,5 +43,7 @@ export async function main(argv: readonly string[], io: CommandIo = { stdout: pr
       return cause.exitCode;
     }
     throw error;
+  } finally {
+    await disableMidi(); // let the process end: an open MIDI system keeps it alive
   }
 }

@@ -1,5 +1,5 @@
 import { UserError, mod } from '../util/errors.js';
-import { formatPitchClass, parsePitchClass } from './names.js';
+import { formatPitchClass, parsePitchClass, type NameStyle } from './names.js';
 import { nearestSpelling, pitchClass, type PitchClass } from './pitch-class.js';
 import { onKey, type SpelledPitch } from './spelled-pitch.js';
 
@@ -45,8 +45,8 @@ export function rangeClasses(range: FifthsRange): PitchClass[] {
   return classes;
 }
 
-export function formatRange(range: FifthsRange): string {
-  return `${formatPitchClass(pitchClass(range.lowest))}..${formatPitchClass(pitchClass(range.highest))}`;
+export function formatRange(range: FifthsRange, style?: NameStyle): string {
+  return `${formatPitchClass(pitchClass(range.lowest), style)}..${formatPitchClass(pitchClass(range.highest), style)}`;
 }
 
 /** The spelling of a chroma (0…11) inside a window. */

@@ -18,6 +18,8 @@ export interface TunedNote {
   /** The nearest 12-ET key of the synth: the spelling's key plus `keyShift`. */
   readonly nearestKey: number;
   readonly offset: ClassOffset;
+  /** Cents from the 12-ET pitch of the same key at the same reference (what a player reads). */
+  readonly etCents: number;
 }
 
 /**
@@ -50,11 +52,8 @@ export class PitchTable {
   tune(pitch: SpelledPitch): TunedNote {
     const offset = this.offsetOf(pitch);
     const key = keyOf(pitch);
-    return {
-      pitch,
-      hz: this.synthA4 * 2 ** ((key - 69 + offset.cents / 100) / 12),
-      nearestKey: key + offset.keyShift,
-      offset,
-    };
+    const hz = this.synthA4 * 2 ** ((key - 69 + offset.cents / 100) / 12);
+    const et = this.reference.hz.valueOf() * 2 ** ((key - keyOf(this.reference.pitch)) / 12);
+    return { pitch, hz, nearestKey: key + offset.keyShift, offset, etCents: 1200 * Math.log2(hz / et) };
   }
 }

@@ -30,7 +30,7 @@ export const ACTIVE_SENSING_TIMEOUT_MS = 300;
 
 /** What the router decided, for displays and logs (never needed for the output itself). */
 export type RouterEvent =
-  | { readonly type: 'note'; readonly time: number; readonly source: number; readonly inChannel: number; readonly inKey: number; readonly velocity: number; readonly pitch: SpelledPitch; readonly hz: number; readonly cents: number; readonly placement: Placement }
+  | { readonly type: 'note'; readonly time: number; readonly source: number; readonly inChannel: number; readonly inKey: number; readonly velocity: number; readonly pitch: SpelledPitch; readonly hz: number; /** From 12-ET at the reference. */ readonly cents: number; readonly placement: Placement }
   | { readonly type: 'key-up'; readonly time: number; readonly source: number; readonly inChannel: number; readonly inKey: number }
   | { readonly type: 'note-dropped'; readonly time: number; readonly inKey: number; readonly reason: string }
   | { readonly type: 'out-of-range'; readonly time: number; readonly pitch: SpelledPitch; readonly neededCents: number }
@@ -216,6 +216,14 @@ export class Router {
     });
   }
 
+  get sustainDown(): boolean {
+    return this.sustain;
+  }
+
+  get sostenutoDown(): boolean {
+    return this.sostenuto;
+  }
+
   /** How many voices sound now (keys down plus those held by pedals). */
   get soundingCount(): number {
     return this.sounding.size;
@@ -334,7 +342,7 @@ export class Router {
       velocity,
       pitch,
       hz: tuned.hz,
-      cents: tuned.offset.cents,
+      cents: tuned.etCents,
       placement,
     });
   }

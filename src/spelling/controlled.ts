@@ -31,6 +31,7 @@ export class ControlledSpeller implements Speller {
   flip = false;
   shift = 0;
   force: Force = undefined;
+  frozen = false;
 
   constructor(
     readonly base: Speller,
@@ -88,6 +89,7 @@ export class ControlledSpeller implements Speller {
   }
 
   setFrozen(frozen: boolean): void {
+    this.frozen = frozen;
     this.base.setFrozen(frozen);
   }
 }

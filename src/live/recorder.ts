@@ -1,0 +1,34 @@
+import type { MidiEvent } from 'midi-file';
+import { writeMidiFile } from '../render/smf.js';
+
+/**
+ * Records a take: what came in and what went out, with their times, as a Standard MIDI File
+ * (one track each, 500 ticks per beat at 120 bpm, so a tick is a millisecond).
+ */
+export class Recorder {
+  private readonly input: Array<{ tick: number; data: readonly number[] }> = [];
+  private readonly output: Array<{ tick: number; data: readonly number[] }> = [];
+  private start: number | undefined;
+
+  private tick(time: number): number {
+    this.start ??= time;
+    return Math.max(0, Math.round(time - this.start));
+  }
+
+  received(time: number, data: readonly number[]): void {
+    this.input.push({ tick: this.tick(time), data });
+  }
+
+  sent(time: number, data: readonly number[]): void {
+    this.output.push({ tick: this.tick(time), data });
+  }
+
+  toMidiFile(): Uint8Array {
+    const meta: Array<{ tick: number; event: MidiEvent }> = [
+      { tick: 0, event: { deltaTime: 0, type: 'setTempo', microsecondsPerBeat: 500_000 } },
+      { tick: 0, event: { deltaTime: 0, type: 'trackName', text: 'diesis take: track 2 as played, track 3 as sent' } },
+    ];
+    const byTick = (a: { tick: number }, b: { tick: number }): number => a.tick - b.tick;
+    return writeMidiFile({ ticksPerBeat: 500 }, meta, [[...this.input].sort(byTick), [...this.output].sort(byTick)]);
+  }
+}
