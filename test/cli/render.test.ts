@@ -95,3 +95,11 @@ describe('diesis render', () => {
     expect(result.stderr.trim().split('\n')).toHaveLength(1);
   });
 });
+
+describe('diesis play', () => {
+  it('asks for its ports in one line', async () => {
+    const result = await runCli('play', '--in', 'keyboard');
+    expect(result.code).toBe(2);
+    expect(result.stderr).toBe('diesis: play needs --in PORT and --out PORT (run "diesis ports" to list them)\n');
+  });
+});

@@ -1,0 +1,68 @@
+import { spawn } from 'node:child_process';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+
+const root = join(import.meta.dirname, '../..');
+
+/** Spawns a child holding a chord through the bridge, signals it once it is ready, and reads its report. */
+function signalled(signal: NodeJS.Signals): Promise<{ exitCode: number | null; report: { code: number; active: number; after: number[][] }; readyHeld: number }> {
+  return new Promise((resolve, reject) => {
+    const child = spawn(process.execPath, [join(root, 'test/fixtures/signal-child.js')], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
+    let out = '';
+    let readyHeld = -1;
+    child.stdout.on('data', (chunk: Buffer) => {
+      out += chunk.toString();
+      const ready = /^ready (\d+)$/mu.exec(out);
+      if (ready && readyHeld < 0) {
+        readyHeld = Number(ready[1]);
+        child.kill(signal);
+      }
+    });
+    const timer = setTimeout(() => {
+      child.kill('SIGKILL');
+      reject(new Error(`the child did not finish: ${out}`));
+    }, 20_000);
+    child.on('exit', (exitCode) => {
+      clearTimeout(timer);
+      const last = out.trim().split('\n').pop() ?? '{}';
+      resolve({ exitCode, report: JSON.parse(last) as { code: number; active: number; after: number[][] }, readyHeld });
+    });
+  });
+}
+
+// The virtual ports live inside the child process, so its synth is what reports: the test checks
+// that the panic sequence reached it after the signal and before the process exited.
+describe('signals end the session with a panic first', () => {
+  it.each([
+    ['SIGINT', 130],
+    ['SIGTERM', 143],
+    ['SIGHUP', 129],
+  ] as const)('%s: notes off, pedals up, All Notes Off and centred bends reach the synth; exit %i', async (signal, code) => {
+    const { exitCode, report, readyHeld } = await signalled(signal);
+    expect(readyHeld).toBe(4); // a chord was sounding when the signal came
+    expect(exitCode).toBe(code);
+    expect(report.active).toBe(0);
+    const after = report.after;
+    expect(after.filter((m) => (m[0]! & 0xf0) === 0x80)).toHaveLength(4); // a note-off for each held key
+    expect(after.some((m) => (m[0]! & 0xf0) === 0xb0 && m[1] === 64 && m[2] === 0)).toBe(true);
+    expect(after.some((m) => (m[0]! & 0xf0) === 0xb0 && m[1] === 123)).toBe(true);
+    expect(after.some((m) => (m[0]! & 0xf0) === 0xe0 && m[1] === 0 && m[2] === 64)).toBe(true);
+  });
+});
+
+describe('npm start', () => {
+  it('runs the demo on a machine without MIDI hardware and exits 0', async () => {
+    const { stdout, exitCode } = await new Promise<{ stdout: string; exitCode: number | null }>((resolve) => {
+      const child = spawn(process.execPath, [join(root, 'bin/diesis.js'), 'demo'], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
+      let text = '';
+      child.stdout.on('data', (c: Buffer) => (text += c.toString()));
+      child.on('exit', (exitCode) => resolve({ stdout: text, exitCode }));
+    });
+    expect(exitCode).toBe(0);
+    expect(stdout).toMatch(/A♭4\s+key\s+68/u); // the flipped bar
+    expect(stdout).toMatch(/G♯4\s+key\s+68/u);
+    expect(stdout).toMatch(/D♭3\s+key\s+49/u);
+    expect(stdout).toMatch(/C♯5\s+key\s+73/u);
+    expect(stdout).toMatch(/the synth sounded 26 notes, each within 0\.\d+ cent of its spelling's frequency; nothing is left sounding/u);
+  }, 30_000);
+});
