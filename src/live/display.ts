@@ -42,36 +42,51 @@ export class LiveView {
     return formatSpelledPitch(pitch, this.names);
   }
 
-  /** Takes an engine event; returns the line to print when there is no screen to redraw. */
-  event(e: RouterEvent): string | undefined {
+  /** Takes an engine event into the state the screen shows. */
+  event(e: RouterEvent): void {
+    if (e.type === 'note') this.sounding.set(e.source * 2048 + e.inChannel * 128 + e.inKey, { pitch: e.pitch, cents: e.cents, hz: e.hz, channel: e.placement.channel + 1 });
+    else if (e.type === 'key-up') this.sounding.delete(e.source * 2048 + e.inChannel * 128 + e.inKey);
+    else if (e.type === 'panic') {
+      this.sounding.clear();
+      this.lastPanic = e.reason;
+    }
+    const warning = this.warningOf(e);
+    if (warning) this.remember(warning);
+  }
+
+  /** The line to print for an event when there is no screen to redraw. */
+  line(e: RouterEvent): string | undefined {
+    if (e.type === 'note') {
+      return `${this.note(e.pitch).padEnd(5)} key ${String(e.inKey).padStart(3)}  ${signed(e.cents, 2, this.names.accidentals === 'ascii').padStart(8)} c  ${e.hz.toFixed(2).padStart(8)} Hz  → ch ${e.placement.channel + 1} key ${e.placement.key}`;
+    }
+    const warning = this.warningOf(e);
+    return warning && this.style.yellow(`! ${warning}`);
+  }
+
+  private warningOf(e: RouterEvent): string | undefined {
     switch (e.type) {
-      case 'note':
-        this.sounding.set(e.source * 2048 + e.inChannel * 128 + e.inKey, { pitch: e.pitch, cents: e.cents, hz: e.hz, channel: e.placement.channel + 1 });
-        return `${this.note(e.pitch).padEnd(5)} key ${String(e.inKey).padStart(3)}  ${signed(e.cents, 2, this.names.accidentals === 'ascii').padStart(8)} c  ${e.hz.toFixed(2).padStart(8)} Hz  → ch ${e.placement.channel + 1} key ${e.placement.key}`;
-      case 'key-up':
-        this.sounding.delete(e.source * 2048 + e.inChannel * 128 + e.inKey);
-        return undefined;
       case 'steal':
-        return this.warn(`stole a channel: ${e.voices} note(s) ended to make room`);
+        return `stole a channel: ${e.voices} note(s) ended to make room`;
       case 'out-of-range':
-        return this.warn(`${this.note(e.pitch)} needs ${e.neededCents.toFixed(1)} cents: more than the bend range`);
+        return `${this.note(e.pitch)} needs ${e.neededCents.toFixed(1)} cents: more than the bend range`;
       case 'note-dropped':
-        return this.warn(`key ${e.inKey} dropped: ${e.reason}`);
+        return `key ${e.inKey} dropped: ${e.reason}`;
       case 'panic':
-        this.sounding.clear();
-        this.lastPanic = e.reason;
-        return this.warn(`PANIC (${e.reason}): all notes off`);
+        return `PANIC (${e.reason}): all notes off`;
+      default:
+        return undefined;
     }
   }
 
   notice(n: BridgeNotice): string {
-    return this.warn(n.kind === 'port' ? `${n.change.type} "${n.change.name}" ${n.change.kind}: ${n.action}` : `could not send: ${n.error}`);
+    const text = n.kind === 'port' ? `${n.change.type} "${n.change.name}" ${n.change.kind}: ${n.action}` : `could not send: ${n.error}`;
+    this.remember(text);
+    return this.style.yellow(`! ${text}`);
   }
 
-  private warn(text: string): string {
+  private remember(text: string): void {
     this.notices.push(text);
     if (this.notices.length > 4) this.notices.shift();
-    return this.style.yellow(`! ${text}`);
   }
 
   /** The whole screen, for a terminal. */

@@ -66,8 +66,9 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
   const recorder = options.recordFile ? new Recorder() : undefined;
   let bridge: Bridge | undefined;
   let view: LiveView | undefined;
+  const lines = !screen && !options.quiet;
   const print = (line: string | undefined): void => {
-    if (line !== undefined && !screen && !options.quiet) io.stdout.write(line + '\n');
+    if (line !== undefined && lines) io.stdout.write(line + '\n');
   };
   const router = createRouter({
     ...options.engine,
@@ -75,7 +76,8 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
     observer: (e) => {
       options.onEvent?.(e);
       log?.write(logLine(e));
-      print(view?.event(e));
+      if (screen) view?.event(e);
+      else if (lines) print(view?.line(e));
     },
   });
   view = new LiveView(

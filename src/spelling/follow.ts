@@ -46,22 +46,15 @@ function asDeclared(key: Key): DeclaredKey {
   return { tonic: pitchClass(key.tonic), mode: key.mode };
 }
 
-function correlation(weights: readonly number[], profile: readonly number[], tonicChroma: number): number {
-  const n = 12;
-  const wMean = weights.reduce((a, b) => a + b, 0) / n;
-  const pMean = profile.reduce((a, b) => a + b, 0) / n;
-  let num = 0;
-  let wVar = 0;
-  let pVar = 0;
-  for (let i = 0; i < n; i++) {
-    const w = weights[(tonicChroma + i) % n]! - wMean;
-    const p = profile[i]! - pMean;
-    num += w * p;
-    wVar += w * w;
-    pVar += p * p;
-  }
-  return wVar === 0 ? 0 : num / Math.sqrt(wVar * pVar);
+/** A profile centred on its mean and scaled to unit length, so a correlation is one dot product. */
+function normalise(profile: readonly number[]): Float64Array {
+  const mean = profile.reduce((a, b) => a + b, 0) / profile.length;
+  const centred = profile.map((v) => v - mean);
+  const length = Math.sqrt(centred.reduce((a, v) => a + v * v, 0));
+  return Float64Array.from(centred, (v) => v / length);
 }
+
+const PROFILES = { major: normalise(MAJOR_PROFILE), minor: normalise(MINOR_PROFILE) } as const;
 
 /**
  * Follows the harmony causally. It keeps a time-decayed weight per key (chroma) of the notes
@@ -113,24 +106,44 @@ export class FollowSpeller implements Speller {
     this.lastTime = time;
   }
 
+  private readonly scratch = new Float64Array(12);
+
+  /** Correlation of the weights (centred, in `scratch`) with a key's profile, over `norm`. */
+  private score(tonicChroma: number, mode: Key['mode'], norm: number): number {
+    const profile = PROFILES[mode];
+    let dot = 0;
+    for (let i = 0; i < 12; i++) dot += this.scratch[(tonicChroma + i) % 12]! * profile[i]!;
+    return norm === 0 ? 0 : dot / norm;
+  }
+
   private update(): void {
-    const weights = [...this.weights];
-    for (const chroma of this.held.values()) weights[chroma]! += this.p.heldWeight;
-    const score = (k: Key): number => correlation(weights, k.mode === 'major' ? MAJOR_PROFILE : MINOR_PROFILE, chromaAt(k.tonic));
-    const currentScore = score(this.current);
-    let best = this.current;
+    const w = this.scratch;
+    for (let i = 0; i < 12; i++) w[i] = this.weights[i]!;
+    for (const chroma of this.held.values()) w[chroma]! += this.p.heldWeight;
+    let mean = 0;
+    for (let i = 0; i < 12; i++) mean += w[i]!;
+    mean /= 12;
+    let norm = 0;
+    for (let i = 0; i < 12; i++) {
+      w[i]! -= mean;
+      norm += w[i]! * w[i]!;
+    }
+    norm = Math.sqrt(norm);
+    const currentScore = this.score(chromaAt(this.current.tonic), this.current.mode, norm);
+    let bestChroma = -1;
+    let bestMode: Key['mode'] = this.current.mode;
     let bestScore = currentScore;
     for (let chroma = 0; chroma < 12; chroma++) {
       for (const mode of ['major', 'minor'] as const) {
-        const candidate = this.nearestSpelledKey(chroma, mode);
-        const s = score(candidate);
+        const s = this.score(chroma, mode, norm);
         if (s > bestScore) {
-          best = candidate;
+          bestChroma = chroma;
+          bestMode = mode;
           bestScore = s;
         }
       }
     }
-    if (bestScore - currentScore > this.p.hysteresis) this.current = best;
+    if (bestChroma >= 0 && bestScore - currentScore > this.p.hysteresis) this.current = this.nearestSpelledKey(bestChroma, bestMode);
   }
 
   /**
