@@ -3,7 +3,10 @@ import { buildChart, chartJson } from '../chart/chart.js';
 import { chartCsv, chartText } from '../chart/chart-text.js';
 import { parseFifthsRange } from '../pitch/index.js';
 import { loadTuningPreset } from '../presets/tuning-presets.js';
-import { A440, DEFAULT_WOLF_LIMITS, parseReference } from '../tuning/index.js';
+import { A440, DEFAULT_WOLF_LIMITS, frequency, parseReference } from '../tuning/index.js';
+import { renderDyads } from '../audio/preview.js';
+import { writeWav } from '../audio/wav.js';
+import { writeOutputFile } from './render-command.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from './io.js';
 import { integerOption, numberOption } from './options.js';
@@ -19,6 +22,7 @@ interface ChartOptions {
   ascii?: boolean;
   wolfFifth: number;
   wolfThird: number;
+  listen?: string;
 }
 
 export function registerChart(program: Command, io: CommandIo): void {
@@ -35,6 +39,7 @@ export function registerChart(program: Command, io: CommandIo): void {
     .option('--ascii', 'write # and b instead of ♯ and ♭')
     .option('--wolf-fifth <cents>', 'a fifth further than this from 3/2 is a wolf', numberOption('--wolf-fifth', 0, 1200), DEFAULT_WOLF_LIMITS.fifth)
     .option('--wolf-third <cents>', 'a third further than this from 5/4 is a wolf', numberOption('--wolf-third', 0, 1200), DEFAULT_WOLF_LIMITS.third)
+    .option('--listen <file.wav>', 'also write the chart’s fifths and thirds as sustained dyads, to hear the beats and the wolves')
     .action((tuningArg: string, options: ChartOptions) => {
       const preset = loadTuningPreset(tuningArg);
       const reference = options.ref !== undefined ? parseReference(options.ref, '--ref') : (preset.reference ?? A440);
@@ -46,6 +51,10 @@ export function registerChart(program: Command, io: CommandIo): void {
         octave: options.octave,
         wolfLimits: { fifth: options.wolfFifth, third: options.wolfThird },
       });
+      if (options.listen) {
+        const pairs = chart.intervals.map((i) => [frequency(preset.tuning, reference, i.lower), frequency(preset.tuning, reference, i.upper)] as const);
+        writeOutputFile(options.listen, writeWav(renderDyads(pairs, 44_100), 16));
+      }
       if (options.json) {
         const meta = { id: preset.id, name: preset.name, kind: preset.kind, source: preset.source };
         io.stdout.write(JSON.stringify(chartJson(chart, meta), null, 2) + '\n');

@@ -1,4 +1,5 @@
 import { Option, type Command } from 'commander';
+import { loadSampleSet, type LoadedSampleSet } from '../audio/sample-set.js';
 import { parseWindow } from '../pitch/index.js';
 import { loadSetupFile, type SetupFile } from '../presets/setup-file.js';
 import { loadTuningPreset, type TuningPreset } from '../presets/tuning-presets.js';
@@ -35,6 +36,7 @@ export interface EngineCliOptions {
   mtsDevice?: number;
   mtsProgram?: number;
   octaveForm?: string;
+  sampleSet?: string;
 }
 
 export function addEngineOptions(command: Command): Command {
@@ -56,7 +58,8 @@ export function addEngineOptions(command: Command): Command {
     .option('--synth-a4 <hz>', 'the synth’s own tuning of A4 (default: 440)', numberOption('--synth-a4', 300, 600))
     .option('--mts-device <id>', 'MTS device ID, 127 = all (default: 127)', integerOption('--mts-device', 0, 127))
     .option('--mts-program <n>', 'MTS tuning program addressed (default: 0)', integerOption('--mts-program', 0, 127))
-    .addOption(new Option('--octave-form <bytes>', 'mts-octave: 1-byte (cents) or 2-byte (fine) messages (default: 2)').choices(['1', '2']));
+    .addOption(new Option('--octave-form <bytes>', 'mts-octave: 1-byte (cents) or 2-byte (fine) messages (default: 2)').choices(['1', '2']))
+    .option('--sample-set <dir>', 'play a retuned sample set made by "diesis samples": --mode samples, its channel layout, no bends');
 }
 
 export interface ResolvedEngine {
@@ -65,15 +68,17 @@ export interface ResolvedEngine {
   readonly strategy: Strategy;
   readonly speller: ControlledSpeller;
   readonly options: EngineOptionsInput;
+  readonly sampleSet: LoadedSampleSet | undefined;
 }
 
 /** Turns the command line (over a setup file) into engine options; every bad value is one clear line. */
 export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const setup = cli.setup === undefined ? undefined : loadSetupFile(cli.setup);
   const json = setup?.json;
+  const sampleSet = cli.sampleSet === undefined ? undefined : loadSampleSet(cli.sampleSet);
   const preset = loadTuningPreset(cli.tuning ?? json?.tuning ?? 'meantone-1-4');
   const refText = cli.ref ?? json?.reference;
-  const mode = cli.mode ?? json?.output?.mode ?? 'bend';
+  const mode = sampleSet ? 'samples' : (cli.mode ?? json?.output?.mode ?? 'bend');
   const channelText = cli.channels ?? json?.output?.channels ?? '2-16';
   const channels = parseChannels(channelText);
   if (mode !== 'bend' && channels.length > 1 && channelText !== '2-16') {
@@ -100,8 +105,9 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     mtsProgram: cli.mtsProgram ?? json?.output?.mtsProgram,
     octaveForm: octaveForm === undefined ? undefined : octaveForm === '1' ? 1 : 2,
     speller,
+    sampleLayout: sampleSet?.layout,
     controls: setup && setup.bindings.length > 0 ? new ControlMap(setup.bindings, speller) : undefined,
     gather: cli.gather ?? json?.spelling?.gatherMs,
   };
-  return { preset, setup, strategy, speller, options };
+  return { preset, setup, strategy, speller, options, sampleSet };
 }

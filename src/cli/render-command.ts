@@ -1,4 +1,8 @@
-import type { Command } from 'commander';
+import { Option, type Command } from 'commander';
+import { renderPreview, type VoiceKind } from '../audio/preview.js';
+import { playSampleSet } from '../audio/sample-set.js';
+import { writeWav } from '../audio/wav.js';
+import { progressBar } from './progress.js';
 import { readFileSync, renameSync, writeFileSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { renderEvents, type RenderSummary } from '../render/render-midi.js';
@@ -50,6 +54,10 @@ export function describeSetup(tuningName: string, reference: Reference, mode: st
 
 interface RenderOptions extends EngineCliOptions {
   output?: string;
+  wav?: string;
+  rate: string;
+  bits: string;
+  voice: VoiceKind;
 }
 
 export function registerRender(program: Command, io: CommandIo): void {
@@ -57,16 +65,30 @@ export function registerRender(program: Command, io: CommandIo): void {
     .command('render')
     .description('run a Standard MIDI File through the engine and write one that any synth or DAW plays in tune')
     .argument('<in.mid>', 'the performance to render')
-    .option('-o, --output <out.mid>', 'the Standard MIDI File to write');
+    .option('-o, --output <out.mid>', 'the Standard MIDI File to write')
+    .option('--wav <out.wav>', 'also (or instead) write an audio preview at the tuned frequencies')
+    .addOption(new Option('--rate <hz>', 'audio sample rate').choices(['44100', '48000']).default('44100'))
+    .addOption(new Option('--bits <n>', 'audio bit depth').choices(['16', '24']).default('16'))
+    .addOption(new Option('--voice <voice>', 'the built-in voice of the preview (with --sample-set the preview plays the set)').choices(['pluck', 'organ']).default('pluck'));
   addEngineOptions(command).action((input: string, cli: RenderOptions) => {
-    if (!cli.output) throw new UserError('render needs -o OUT.mid, the file to write', 2);
-    if (resolve(cli.output) === resolve(input)) throw new UserError(`-o ${cli.output}: refusing to overwrite the input file`, 2);
-    const { preset, options } = resolveEngineCli(cli);
+    if (!cli.output && !cli.wav) throw new UserError('render needs -o OUT.mid or --wav OUT.wav, the file to write', 2);
+    for (const out of [cli.output, cli.wav]) if (out && resolve(out) === resolve(input)) throw new UserError(`${out}: refusing to overwrite the input file`, 2);
+    const { preset, options, sampleSet } = resolveEngineCli(cli);
     const content = readMidiFile(readInputFile(input), input);
     const engine = resolveEngineOptions({ ...options, gather: 'same-time' }); // in a file, equal onsets are a chord
-    const { messages, summary } = renderEvents(content, createRouter(engine), engine.releaseGuardMs);
-    writeOutputFile(cli.output, writeMidiFile(content.division, content.meta, [messages]));
+    let times: number[] = [];
+    const { messages, summary } = renderEvents(content, createRouter(engine), engine.releaseGuardMs, undefined, (ms) => (times = ms));
+    if (cli.output) writeOutputFile(cli.output, writeMidiFile(content.division, content.meta, [messages]));
+    if (cli.wav) {
+      const bar = progressBar(io.stderr, 'rendering audio');
+      const timed = messages.map((m, i) => ({ time: times[i] ?? 0, data: m.data }));
+      const rate = Number(cli.rate);
+      const audio = sampleSet ? playSampleSet(timed, sampleSet, rate, bar.update) : renderPreview(timed, { sampleRate: rate, voice: cli.voice, synthA4: engine.synthA4, progress: bar.update });
+      bar.done();
+      writeOutputFile(cli.wav, writeWav(audio, cli.bits === '24' ? 24 : 16));
+    }
     const setup = describeSetup(preset.name, engine.reference, engine.mode, engine.layout, engine.channels);
-    io.stdout.write(summaryText(summary, `${input} → ${cli.output}: ${setup}`));
+    const written = [cli.output, cli.wav].filter(Boolean).join(' and ');
+    io.stdout.write(summaryText(summary, `${input} → ${written}: ${setup}`));
   });
 }

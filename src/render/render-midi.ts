@@ -33,16 +33,24 @@ export function renderEvents(
   releaseGuardMs: number,
   /** Told the tick each batch of output belongs to, before it is produced (for observers). */
   atTick: (tick: number) => void = () => undefined,
+  /** Receives each output message's time in ms, in the same order as the messages (for audio). */
+  withTimes?: (times: number[]) => void,
 ): { messages: TickedMessage[]; summary: RenderSummary } {
-  const messages: TickedMessage[] = router.start(0).map((m) => ({ tick: 0, data: m.data }));
+  const messages: TickedMessage[] = [];
+  const times: number[] = [];
+  const push = (tick: number, m: { time: number; data: readonly number[] }): void => {
+    messages.push({ tick, data: m.data });
+    times.push(m.time);
+  };
+  for (const m of router.start(0)) push(0, m);
   let bytesIn = 0;
   let bytesOut = 0;
   let lastTime = 0;
   let lastTick = 0;
-  const take = (tick: number, out: ReadonlyArray<{ data: readonly number[] }>): void => {
+  const take = (tick: number, out: ReadonlyArray<{ time: number; data: readonly number[] }>): void => {
     for (const m of out) {
       bytesOut += m.data.length;
-      messages.push({ tick, data: m.data });
+      push(tick, m);
     }
   };
   for (const event of content.events) {
@@ -58,9 +66,10 @@ export function renderEvents(
   }
   atTick(lastTick);
   take(lastTick, router.flush(lastTime));
-  for (const m of router.releaseAll(lastTime)) messages.push({ tick: content.lastTick, data: m.data });
+  for (const m of router.releaseAll(lastTime)) push(content.lastTick, m);
   const closingTick = content.lastTick + Math.ceil(releaseGuardMs / content.msPerTickAtEnd);
-  for (const m of router.panic(lastTime + releaseGuardMs, 'end of file')) messages.push({ tick: closingTick, data: m.data });
+  for (const m of router.panic(lastTime + releaseGuardMs, 'end of file')) push(closingTick, m);
+  withTimes?.(times);
   const { stats, output } = router;
   return {
     messages,

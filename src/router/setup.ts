@@ -9,10 +9,11 @@ import { MtsNoteOutput } from './mts-note-output.js';
 import { MtsOctaveOutput } from './mts-octave-output.js';
 import type { OutputStrategy } from './output.js';
 import { PassOutput } from './pass-output.js';
+import { SamplesOutput } from './samples-output.js';
 import { PitchTable } from './pitch-table.js';
 import { Router, type RouterEvent } from './router.js';
 
-export const OUTPUT_MODES = ['bend', 'mts-note', 'mts-octave', 'pass'] as const;
+export const OUTPUT_MODES = ['bend', 'mts-note', 'mts-octave', 'pass', 'samples'] as const;
 export type OutputMode = (typeof OUTPUT_MODES)[number];
 
 /** Everything the engine needs; `resolveEngineOptions` fills the defaults. */
@@ -34,6 +35,8 @@ export interface EngineOptions {
   readonly mtsProgram: number;
   readonly octaveForm: ScaleOctaveForm;
   readonly speller: Speller;
+  /** For `samples`: each spelling's channel in the sample set (line-of-fifths position → 0…15). */
+  readonly sampleLayout?: ReadonlyMap<number, number> | undefined;
   readonly controls?: ControlMap | undefined;
   /** Chord gathering: milliseconds to wait live, or `'same-time'` for files. */
   readonly gather?: number | 'same-time' | undefined;
@@ -65,6 +68,7 @@ export function resolveEngineOptions(input: EngineOptionsInput): EngineOptions {
     mtsProgram: input.mtsProgram ?? 0,
     octaveForm: input.octaveForm ?? 2,
     speller: input.speller ?? fixedSpeller(input.window ?? DEFAULT_WINDOW),
+    sampleLayout: input.sampleLayout,
     controls: input.controls,
     gather: input.gather,
     observer: input.observer,
@@ -113,6 +117,9 @@ export function createOutput(options: EngineOptions, table: PitchTable): OutputS
       );
     case 'pass':
       return new PassOutput(first);
+    case 'samples':
+      if (!options.sampleLayout) throw new UserError('--mode samples needs a sample set: give --sample-set DIR (made by "diesis samples")', 2);
+      return new SamplesOutput(options.sampleLayout);
   }
 }
 
