@@ -1,6 +1,7 @@
 // Prints the project's figures; nothing here is asserted (tests assert behaviour, not time).
 // `npm run bench` runs everything with a one-minute soak; `npm run bench:soak` the ten-minute one.
 import { disableMidi } from '../src/io/midi-system.js';
+import { benchAudio } from './audio.js';
 import { benchLatency, benchSoak } from './live.js';
 import { benchRouter } from './router.js';
 import { benchSpelling } from './spelling.js';
@@ -13,6 +14,7 @@ if (!soakOnly) {
   benchTuning();
   benchRouter();
   benchSpelling();
+  benchAudio();
   await benchLatency();
 }
 await benchSoak(minutes);

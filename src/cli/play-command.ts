@@ -5,7 +5,7 @@ import { formatRange } from '../pitch/index.js';
 import { UserError } from '../util/errors.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import type { CommandIo } from './io.js';
-import { describeSetup } from './render-command.js';
+import { channelsOf, describeSetup } from './render-command.js';
 import { renderTable } from './table.js';
 import { numberOption } from './options.js';
 
@@ -142,6 +142,7 @@ export function registerPlay(program: Command, io: CommandIo): void {
 
 export function sessionTitle(resolved: ReturnType<typeof resolveEngineCli>): { engine: SessionOptions['engine']; title: string } {
   const { options, preset, speller, strategy } = resolved;
-  const title = `diesis · ${describeSetup(preset.name, options.reference, options.mode ?? 'bend', options.layout ?? 'mpe', options.channels ?? [])} · ${strategy} from ${formatRange(speller.currentWindow())}`;
+  const channels = channelsOf({ mode: options.mode ?? 'bend', channels: options.channels ?? [], sampleLayout: options.sampleLayout });
+  const title = `diesis · ${describeSetup(preset.name, options.reference, options.mode ?? 'bend', options.layout ?? 'mpe', channels)} · ${strategy} from ${formatRange(speller.currentWindow())}`;
   return { engine: options, title };
 }

@@ -48,8 +48,13 @@ export function summaryText(summary: RenderSummary, header: string): string {
 }
 
 export function describeSetup(tuningName: string, reference: Reference, mode: string, layout: string | undefined, channels: readonly number[]): string {
-  const where = mode === 'bend' ? `${layout} on channels ${formatChannels(channels)}` : `on channel ${(channels[0] ?? 0) + 1}`;
+  const where = mode === 'bend' ? `${layout} on channels ${formatChannels(channels)}` : mode === 'samples' ? `on channels ${formatChannels(channels)}` : `on channel ${(channels[0] ?? 0) + 1}`;
   return `${tuningName} at ${formatReference(reference)} Hz, ${mode} ${where}`;
+}
+
+/** The channels an engine sends on, for the summary line. */
+export function channelsOf(engine: { mode: string; channels: readonly number[]; sampleLayout?: ReadonlyMap<number, number> | undefined }): readonly number[] {
+  return engine.mode === 'samples' && engine.sampleLayout ? [...new Set(engine.sampleLayout.values())] : engine.channels;
 }
 
 interface RenderOptions extends EngineCliOptions {
@@ -87,7 +92,7 @@ export function registerRender(program: Command, io: CommandIo): void {
       bar.done();
       writeOutputFile(cli.wav, writeWav(audio, cli.bits === '24' ? 24 : 16));
     }
-    const setup = describeSetup(preset.name, engine.reference, engine.mode, engine.layout, engine.channels);
+    const setup = describeSetup(preset.name, engine.reference, engine.mode, engine.layout, channelsOf(engine));
     const written = [cli.output, cli.wav].filter(Boolean).join(' and ');
     io.stdout.write(summaryText(summary, `${input} → ${written}: ${setup}`));
   });

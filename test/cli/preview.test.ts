@@ -46,3 +46,30 @@ describe('audio preview', () => {
     expect(audio.channels[0]!.length).toBe(intervals * Math.round(2.9 * 44_100));
   });
 });
+
+describe('diesis samples', () => {
+  it('builds a set from a folder and says how to play it; refuses what it cannot reach', async () => {
+    const { writeWav } = await import('../../src/audio/wav.js');
+    const src = join(dir, 'src');
+    (await import('node:fs')).mkdirSync(src);
+    for (const key of [57, 60, 63, 66, 69]) {
+      const hz = 440 * 2 ** ((key - 69) / 12);
+      writeFileSync(join(src, `${key}.wav`), writeWav({ sampleRate: 44_100, channels: [Float32Array.from({ length: 22_050 }, (_, n) => 0.3 * Math.sin((2 * Math.PI * hz * n) / 44_100))] }, 16));
+    }
+    const to = join(dir, 'set');
+    const ok = await runCli('samples', '--from', src, '--to', to, '-t', 'werckmeister-3', '--compass', '57-69', '--range', 'Eb..G#');
+    expect(ok.code).toBe(0);
+    expect(ok.stdout).toMatch(/13 samples from 5 sources, Werckmeister III/u);
+    expect(ok.stdout).toContain(`--sample-set ${to}`);
+    const far = await runCli('samples', '--from', src, '--to', join(dir, 'far'), '--compass', '30-100');
+    expect(far.code).toBe(1);
+    expect(far.stderr).toMatch(/semitones from the nearest sample/u);
+    const tooMany = await runCli('samples', '--from', src, '--to', join(dir, 'many'), '--range', 'Gb..B#');
+    expect(tooMany.stderr).toMatch(/at most 16/u);
+    // The set plays through the engine: render with it as a preview.
+    const input = join(dir, 'three.mid');
+    const wav = await runCli('render', input, '--wav', join(dir, 'set.wav'), '--sample-set', to, '-t', 'werckmeister-3');
+    expect(wav.code).toBe(0);
+    expect(wav.stdout).toMatch(/samples on channels 1–12/u);
+  });
+});
