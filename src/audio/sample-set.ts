@@ -1,10 +1,10 @@
 import { existsSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
 import { basename, join } from 'node:path';
 import { alterationOf, chromaOf, formatPitchClass, formatSpelledPitch, keyOf, letterOf, onKey, parseSpelledPitch, rangeClasses, type FifthsRange, type PitchClass } from '../pitch/index.js';
-import { SynthModel, type ModelVoice } from '../synth/reference-synth.js';
 import { formatReference, frequency, type Reference, type Tuning } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
 import { resample } from './resample.js';
+import { releaseEnvelope, renderThroughSynth } from './synth-render.js';
 import { readWav, writeWav, type Audio } from './wav.js';
 
 /** A player's sample: its audio and the pitch it was recorded at. */
@@ -223,41 +223,35 @@ export function loadSampleSet(dir: string): LoadedSampleSet {
 /** Plays diesis's MIDI output through a sample set, as a sampler would: each note its own sample, no transposition. */
 export function playSampleSet(messages: ReadonlyArray<{ time: number; data: readonly number[] }>, set: LoadedSampleSet, sampleRate: number, progress?: (share: number) => void): Audio {
   const release = 0.15;
-  const synth = new SynthModel(440, release * 2000);
-  const sorted = [...messages].sort((a, b) => a.time - b.time);
-  const out = new Float32Array(Math.ceil(((sorted[sorted.length - 1]?.time ?? 0) / 1000 + 2 * release + 0.5) * sampleRate));
-  const playing = new Map<ModelVoice, { audio: Audio; position: number; step: number; gain: number; released: number | undefined; age: number }>();
-  let cursor = 0;
-  const renderUntil = (frame: number): void => {
-    for (const [voice, p] of playing) {
-      const data = p.audio.channels[0]!;
-      if (voice.state === 'tail' && p.released === undefined) p.released = p.age;
-      for (let n = cursor; n < frame && n < out.length; n++) {
-        let pos = p.position;
-        if (p.audio.loop && pos >= p.audio.loop.end) pos = p.audio.loop.start + ((pos - p.audio.loop.start) % (p.audio.loop.end - p.audio.loop.start));
-        const i = Math.floor(pos);
-        if (i + 1 >= data.length) break;
-        const v = data[i]! + (data[i + 1]! - data[i]!) * (pos - i);
-        const env = p.released === undefined ? 1 : Math.exp(-((p.age - p.released) / sampleRate) / (release / 5));
-        out[n]! += p.gain * env * v;
-        p.position = pos + p.step;
-        p.age++;
-      }
-    }
-    cursor = Math.max(cursor, frame);
-    for (const voice of [...playing.keys()]) if (!synth.voices.includes(voice)) playing.delete(voice);
-  };
-  sorted.forEach((m, i) => {
-    renderUntil(Math.round((m.time / 1000) * sampleRate));
-    const voice = synth.receive(m.time, m.data);
-    const audio = voice && set.audio(voice.channel, voice.key);
-    if (voice && audio) playing.set(voice, { audio, position: 0, step: audio.sampleRate / sampleRate, gain: 0.5 * (voice.velocity / 127) ** 1.5, released: undefined, age: 0 });
-    if (i % 2000 === 0) progress?.(i / sorted.length);
-  });
-  for (let t = sorted[sorted.length - 1]?.time ?? 0; cursor < out.length; t += 50) {
-    synth.advance(t);
-    renderUntil(cursor + Math.round(0.05 * sampleRate));
-  }
-  progress?.(1);
+  const out = renderThroughSynth(
+    messages,
+    sampleRate,
+    release,
+    (voice) => {
+      const audio = set.audio(voice.channel, voice.key);
+      if (!audio) return undefined;
+      const data = audio.channels[0]!;
+      const step = audio.sampleRate / sampleRate;
+      const gain = 0.5 * (voice.velocity / 127) ** 1.5;
+      let position = 0;
+      let age = 0;
+      let endedAt: number | undefined;
+      return {
+        play(buffer, from, to, _hz, ended) {
+          if (ended && endedAt === undefined) endedAt = age;
+          for (let n = from; n < to; n++) {
+            if (audio.loop && position >= audio.loop.end) position = audio.loop.start + ((position - audio.loop.start) % (audio.loop.end - audio.loop.start));
+            const i = Math.floor(position);
+            if (i + 1 >= data.length) return;
+            const v = data[i]! + (data[i + 1]! - data[i]!) * (position - i);
+            buffer[n]! += gain * releaseEnvelope(endedAt === undefined ? undefined : age - endedAt, sampleRate, release) * v;
+            position += step;
+            age++;
+          }
+        },
+      };
+    },
+    progress,
+  );
   return { sampleRate, channels: [out] };
 }

@@ -1,8 +1,8 @@
-import { bendSensitivity, noteOff, pitchBend } from '../midi/bytes.js';
+import { noteOff } from '../midi/bytes.js';
 import { encodeFrequency, singleNoteTuning, type FrequencyData } from '../midi/mts.js';
-import { BEND_CENTRE } from '../midi/pitch-bend.js';
 import type { Emit, OutputCounters, OutputStrategy, PlaceContext, Placement } from './output.js';
 import type { TunedNote } from './pitch-table.js';
+import { SingleChannelOutput } from './single-channel-output.js';
 
 export interface MtsNoteOutputSetup {
   readonly channel: number;
@@ -31,22 +31,17 @@ const sameData = (a: FrequencyData | undefined, b: FrequencyData): boolean => a 
  * retuned only when nothing sounds on it and its release guard has passed, so when G♯ and A♭ of
  * one key must sound together the second takes the nearest free slot instead.
  */
-export class MtsNoteOutput implements OutputStrategy {
+export class MtsNoteOutput extends SingleChannelOutput implements OutputStrategy {
   readonly mode = 'mts-note';
   readonly counters: OutputCounters = { retunes: 0, steals: 0 };
-  readonly zoneChannels: readonly number[];
-  readonly allChannels: readonly number[];
   private readonly slots: Slot[] = Array.from({ length: 128 }, () => ({ data: undefined, sounding: 0, lastEnd: -Infinity, newestStart: -Infinity }));
-  private used = false;
 
   constructor(private readonly setup: MtsNoteOutputSetup) {
-    this.zoneChannels = [setup.channel];
-    this.allChannels = [setup.channel];
+    super(setup.channel);
   }
 
   start(emit: Emit): void {
-    if (this.setup.sendBendRange) for (const m of bendSensitivity(this.setup.channel, this.setup.wheelRange)) emit(m);
-    emit(pitchBend(this.setup.channel, BEND_CENTRE));
+    this.startChannel(emit, this.setup.wheelRange, this.setup.sendBendRange);
     for (const slot of this.slots) slot.data = undefined; // the synth's tuning is unknown until we send it
   }
 
@@ -117,23 +112,11 @@ export class MtsNoteOutput implements OutputStrategy {
     return true;
   }
 
-  wheel(value: number, _range: number, _time: number, emit: Emit): void {
-    emit(pitchBend(this.setup.channel, value));
-  }
-
-  reassert(emit: Emit): void {
-    emit(pitchBend(this.setup.channel, BEND_CENTRE));
-  }
-
-  panic(emit: Emit): void {
-    emit(pitchBend(this.setup.channel, BEND_CENTRE));
+  override panic(emit: Emit): void {
+    super.panic(emit);
     for (const slot of this.slots) {
       slot.sounding = 0;
       slot.lastEnd = -Infinity;
     }
-  }
-
-  usedChannels(): number[] {
-    return this.used ? [this.setup.channel] : [];
   }
 }

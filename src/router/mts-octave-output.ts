@@ -1,10 +1,9 @@
-import { bendSensitivity, pitchBend } from '../midi/bytes.js';
 import { quantiseScaleOctave, scaleOctaveLimits, scaleOctaveTuning, type ScaleOctaveForm } from '../midi/mts.js';
-import { BEND_CENTRE } from '../midi/pitch-bend.js';
 import { chromaOf, keyOf, rangeClasses, type KeyboardWindow } from '../pitch/index.js';
 import { mod } from '../util/errors.js';
 import type { Emit, OutputCounters, OutputStrategy, PlaceContext, Placement } from './output.js';
 import type { PitchTable, TunedNote } from './pitch-table.js';
+import { SingleChannelOutput } from './single-channel-output.js';
 
 export interface MtsOctaveOutputSetup {
   readonly channel: number;
@@ -22,22 +21,18 @@ export interface MtsOctaveOutputSetup {
  * (1-byte form) or ±100 cents (2-byte form), so all keys are moved by one common shift chosen at
  * start from the reference pitch.
  */
-export class MtsOctaveOutput implements OutputStrategy {
+export class MtsOctaveOutput extends SingleChannelOutput implements OutputStrategy {
   readonly mode = 'mts-octave';
   readonly counters: OutputCounters = { retunes: 0, steals: 0 };
-  readonly zoneChannels: readonly number[];
-  readonly allChannels: readonly number[];
   private readonly offsets: number[] = new Array<number>(12).fill(0);
   private readonly shift: number;
-  private used = false;
 
   constructor(
     private readonly setup: MtsOctaveOutputSetup,
     private readonly table: PitchTable,
     private readonly window: KeyboardWindow,
   ) {
-    this.zoneChannels = [setup.channel];
-    this.allChannels = [setup.channel];
+    super(setup.channel);
     const classes = rangeClasses(window);
     const mean = classes.reduce((sum, pc) => sum + table.offsetOf(pc).cents, 0) / classes.length;
     this.shift = Math.round(mean / 100);
@@ -56,8 +51,7 @@ export class MtsOctaveOutput implements OutputStrategy {
   }
 
   start(emit: Emit): void {
-    if (this.setup.sendBendRange) for (const m of bendSensitivity(this.setup.channel, this.setup.wheelRange)) emit(m);
-    emit(pitchBend(this.setup.channel, BEND_CENTRE));
+    this.startChannel(emit, this.setup.wheelRange, this.setup.sendBendRange);
     for (const pc of rangeClasses(this.window)) this.offsets[mod(chromaOf(pc) + this.shift, 12)] = this.fit(this.table.offsetOf(pc).cents).value;
     this.send(emit);
   }
@@ -94,19 +88,4 @@ export class MtsOctaveOutput implements OutputStrategy {
     return true;
   }
 
-  wheel(value: number, _range: number, _time: number, emit: Emit): void {
-    emit(pitchBend(this.setup.channel, value));
-  }
-
-  reassert(emit: Emit): void {
-    emit(pitchBend(this.setup.channel, BEND_CENTRE));
-  }
-
-  panic(emit: Emit): void {
-    emit(pitchBend(this.setup.channel, BEND_CENTRE));
-  }
-
-  usedChannels(): number[] {
-    return this.used ? [this.setup.channel] : [];
-  }
 }

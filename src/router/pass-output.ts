@@ -3,19 +3,12 @@ import { BEND_CENTRE } from '../midi/pitch-bend.js';
 import { keyOf } from '../pitch/index.js';
 import type { Emit, OutputCounters, OutputStrategy, Placement } from './output.js';
 import type { TunedNote } from './pitch-table.js';
+import { SingleChannelOutput } from './single-channel-output.js';
 
 /** The synth's own 12-ET, untouched: every note on one channel at its own key, for A/B comparison. */
-export class PassOutput implements OutputStrategy {
+export class PassOutput extends SingleChannelOutput implements OutputStrategy {
   readonly mode = 'pass';
   readonly counters: OutputCounters = { retunes: 0, steals: 0 };
-  readonly zoneChannels: readonly number[];
-  readonly allChannels: readonly number[];
-  private used = false;
-
-  constructor(private readonly channel: number) {
-    this.zoneChannels = [channel];
-    this.allChannels = [channel];
-  }
 
   start(emit: Emit): void {
     emit(pitchBend(this.channel, BEND_CENTRE));
@@ -34,19 +27,5 @@ export class PassOutput implements OutputStrategy {
 
   retune(): boolean {
     return false;
-  }
-
-  wheel(value: number, _range: number, _time: number, emit: Emit): void {
-    emit(pitchBend(this.channel, value));
-  }
-
-  reassert(): void {}
-
-  panic(emit: Emit): void {
-    emit(pitchBend(this.channel, BEND_CENTRE));
-  }
-
-  usedChannels(): number[] {
-    return this.used ? [this.channel] : [];
   }
 }

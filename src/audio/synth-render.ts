@@ -1,0 +1,52 @@
+import { SynthModel, type ModelVoice } from '../synth/reference-synth.js';
+
+/** Sounds one voice: adds its samples for frames `from` to `to` at `hz`; `ended` once its key and pedal are up. */
+export interface VoicePlayer {
+  play(out: Float32Array, from: number, to: number, hz: number, ended: boolean): void;
+}
+
+/**
+ * Sounds a stream of MIDI messages as a synth would: the messages drive the reference synth (bends,
+ * MPE zones, MTS, pedals), and every voice it holds is played by the player `start` gives it, at the
+ * frequency the synth gives it, for as long as it rings (its release `releaseSeconds` and as much again).
+ */
+export function renderThroughSynth(
+  messages: ReadonlyArray<{ time: number; data: readonly number[] }>,
+  sampleRate: number,
+  releaseSeconds: number,
+  start: (voice: ModelVoice) => VoicePlayer | undefined,
+  progress?: (share: number) => void,
+  /** The synth's own A4, as the engine was told. */
+  a4 = 440,
+): Float32Array {
+  const synth = new SynthModel(a4, releaseSeconds * 2000);
+  const sorted = [...messages].sort((a, b) => a.time - b.time);
+  const lastMs = sorted[sorted.length - 1]?.time ?? 0;
+  const out = new Float32Array(Math.ceil((lastMs / 1000 + 2 * releaseSeconds + 0.5) * sampleRate));
+  const players = new Map<ModelVoice, VoicePlayer>();
+  let cursor = 0;
+  const renderUntil = (frame: number): void => {
+    const to = Math.min(frame, out.length);
+    for (const [voice, player] of players) player.play(out, cursor, to, synth.frequency(voice), voice.state === 'tail');
+    cursor = Math.max(cursor, to);
+    for (const voice of [...players.keys()]) if (!synth.voices.includes(voice)) players.delete(voice);
+  };
+  sorted.forEach((m, i) => {
+    renderUntil(Math.round((m.time / 1000) * sampleRate));
+    const voice = synth.receive(m.time, m.data);
+    const player = voice && start(voice);
+    if (voice && player) players.set(voice, player);
+    if (i % 2000 === 0) progress?.(i / sorted.length);
+  });
+  for (let t = lastMs; cursor < out.length; t += 50) {
+    synth.advance(t);
+    renderUntil(cursor + Math.round(0.05 * sampleRate));
+  }
+  progress?.(1);
+  return out;
+}
+
+/** An exponential release: 1 until the voice ends, then −43 dB after `seconds`. */
+export function releaseEnvelope(framesSinceEnd: number | undefined, sampleRate: number, seconds: number): number {
+  return framesSinceEnd === undefined ? 1 : Math.exp(-(framesSinceEnd / sampleRate) / (seconds / 5));
+}
