@@ -1,5 +1,4 @@
-import { existsSync, mkdirSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { buildSampleSet, fileStem, keyFromName, loadSampleSet, playSampleSet, readSourceFolder } from '../../src/audio/sample-set.js';
@@ -10,13 +9,14 @@ import { createRouter } from '../../src/router/setup.js';
 import { fixedSpeller } from '../../src/spelling/speller.js';
 import { A440, frequency, parseReference } from '../../src/tuning/index.js';
 import { measureFrequency } from '../support/signal.js';
+import { tempDir } from '../support/temp.js';
 
 const RATE = 48_000;
 const meantone = loadTuningPreset('meantone-1-4').tuning;
 
 /** Synthesises a player's sample folder: a plucked-like tone with harmonics every third key, 12-ET at A4 = 440, looped. */
 function sourceFolder(keys: number[]): string {
-  const dir = mkdtempSync(join(tmpdir(), 'diesis-src-'));
+  const dir = tempDir('diesis-src-');
   for (const key of keys) {
     const hz = 440 * 2 ** ((key - 69) / 12);
     const samples = Float32Array.from({ length: RATE * 1.5 }, (_, n) => {
@@ -31,7 +31,7 @@ function sourceFolder(keys: number[]): string {
 
 describe('retuned sample sets', () => {
   const sources = sourceFolder([48, 51, 54, 57, 60, 63, 66, 69, 72]);
-  const out = join(mkdtempSync(join(tmpdir(), 'diesis-set-')), 'meantone');
+  const out = join(tempDir('diesis-set-'), 'meantone');
   const manifest = buildSampleSet(
     { sources: readSourceFolder(sources), tuning: meantone, tuningName: 'quarter-comma', reference: A440, range: parseFifthsRange('Eb..G#'), compass: { low: 48, high: 72 }, maxShift: 2 },
     out,
@@ -79,7 +79,7 @@ describe('retuned sample sets', () => {
   });
 
   it('refuses a range the sources cannot reach, leaving nothing half-written', () => {
-    const target = join(mkdtempSync(join(tmpdir(), 'diesis-set-')), 'far');
+    const target = join(tempDir('diesis-set-'), 'far');
     expect(() =>
       buildSampleSet(
         { sources: readSourceFolder(sources), tuning: meantone, tuningName: 'q', reference: parseReference('A4=415'), range: parseFifthsRange('Eb..G#'), compass: { low: 40, high: 90 }, maxShift: 1 },
@@ -91,7 +91,7 @@ describe('retuned sample sets', () => {
   });
 
   it('names the file when a source has no root or is not PCM', () => {
-    const dir = mkdtempSync(join(tmpdir(), 'diesis-bad-'));
+    const dir = tempDir('diesis-bad-');
     writeFileSync(join(dir, 'mystery.wav'), writeWav({ sampleRate: RATE, channels: [new Float32Array(10)] }, 16));
     expect(() => readSourceFolder(dir)).toThrow(/mystery\.wav: no root key/u);
     const empty = join(dir, 'none');

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { runCli } from './run-cli.js';
+import { tempDir } from '../support/temp.js';
 
 interface JsonChart {
   tuning: { id: string; name: string; kind: string; source: string };
@@ -95,10 +96,9 @@ describe('diesis presets and check', () => {
 
   it('validates the shipped setup files, and names the path of a setup’s problems', async () => {
     for (const f of ['mpe-synth', 'multitimbral-sampler', 'mts-synth']) expect((await runCli('check', `presets/setups/${f}.json`)).code, f).toBe(0);
-    const { writeFileSync, mkdtempSync } = await import('node:fs');
+    const { writeFileSync } = await import('node:fs');
     const { join } = await import('node:path');
-    const { tmpdir } = await import('node:os');
-    const file = join(mkdtempSync(join(tmpdir(), 'diesis-')), 'setup.json');
+    const file = join(tempDir('diesis-'), 'setup.json');
     writeFileSync(file, JSON.stringify({ output: { mode: 'bend', bendRange: 500 }, controls: [{ cc: 4, action: 'wiggle' }] }));
     const bad = await runCli('check', file);
     expect(bad.code).toBe(1);

@@ -1,5 +1,4 @@
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { readWav } from '../../src/audio/wav.js';
@@ -9,8 +8,9 @@ import { writeMidiFile } from '../../src/render/smf.js';
 import { frequency, parseReference } from '../../src/tuning/index.js';
 import { measureFrequency } from '../support/signal.js';
 import { runCli } from './run-cli.js';
+import { tempDir } from '../support/temp.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'diesis-preview-'));
+const dir = tempDir('diesis-preview-');
 
 describe('audio preview', () => {
   it('renders a file at the tuned frequencies with the built-in voice (-o not needed)', async () => {

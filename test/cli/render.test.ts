@@ -1,5 +1,4 @@
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_WINDOW, spellKey } from '../../src/pitch/index.js';
@@ -8,11 +7,12 @@ import { A440, frequency, parseReference, type Reference } from '../../src/tunin
 import { readWithIndependentParser } from '../support/smf-reader.js';
 import { malformation, SynthModel } from '../../src/synth/reference-synth.js';
 import { runCli } from './run-cli.js';
+import { tempDir } from '../support/temp.js';
 
 // Mozart piano sonatas, derived from Craig Stuart Sapp's digital edition of the Alte Mozart-Ausgabe,
 // CC BY-NC-SA 4.0 (see ../shared/corpus/mozart/LICENSE.md).
 const CORPUS = join(import.meta.dirname, '../../../shared/corpus/mozart');
-const dir = mkdtempSync(join(tmpdir(), 'diesis-render-'));
+const dir = tempDir('diesis-render-');
 
 /**
  * Plays a rendered file into the reference synth model and checks every note against the

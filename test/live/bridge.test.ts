@@ -1,5 +1,4 @@
-import { mkdtempSync, readFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { readWithIndependentParser } from '../support/smf-reader.js';
@@ -13,6 +12,7 @@ import { ControlledSpeller } from '../../src/spelling/controlled.js';
 import { createStrategy } from '../../src/spelling/strategy.js';
 import { SynthModel } from '../../src/synth/reference-synth.js';
 import { A440, frequency } from '../../src/tuning/index.js';
+import { tempDir } from '../support/temp.js';
 
 const meantone = loadTuningPreset('meantone-1-4').tuning;
 const wait = (ms: number) => new Promise((r) => setTimeout(r, ms));
@@ -63,7 +63,7 @@ async function stage(options: { flipCc?: number; multi?: boolean; recordFile?: s
 
 describe('the take and the log', () => {
   it('records input and output tracks as a Standard MIDI File and logs every decision', async () => {
-    const dir = mkdtempSync(join(tmpdir(), 'diesis-live-'));
+    const dir = tempDir('diesis-live-');
     const recordFile = join(dir, 'take.mid');
     const logFile = join(dir, 'take.jsonl');
     const { keyboard, session } = await stage({ recordFile, logFile });

@@ -1,8 +1,8 @@
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { builtInTuningIds, checkTuningPreset, loadBuiltInTuningPresets, loadTuningPreset, PRESETS_DIR } from '../../src/presets/tuning-presets.js';
+import { tempDir } from '../support/temp.js';
 
 const REQUIRED_IDS = [
   'pythagorean',
@@ -80,7 +80,7 @@ describe('tuning presets', () => {
   it('reports unknown ids, unreadable files and bad JSON in one line', () => {
     expect(() => loadTuningPreset('meantone-9-9')).toThrow(/^unknown tuning "meantone-9-9": run "diesis presets"/u);
     expect(() => loadTuningPreset('/nonexistent/x.json')).toThrow(/^\/nonexistent\/x\.json: no such file$/u);
-    const dir = mkdtempSync(join(tmpdir(), 'diesis-'));
+    const dir = tempDir('diesis-');
     const bad = join(dir, 'bad.json');
     writeFileSync(bad, '{ "name": ');
     expect(() => loadTuningPreset(bad)).toThrow(/bad\.json: not valid JSON/u);
