@@ -5,9 +5,10 @@ import { describe, expect, it } from 'vitest';
 const root = join(import.meta.dirname, '../..');
 
 /** Spawns a child holding a chord through the bridge, signals it once it is ready, and reads its report. */
-function signalled(signal: NodeJS.Signals): Promise<{ exitCode: number | null; report: { code: number; active: number; after: number[][] }; readyHeld: number }> {
+function signalled(signal: NodeJS.Signals | 'crash'): Promise<{ exitCode: number | null; report: { code: number; active: number; after: number[][] }; readyHeld: number }> {
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, [join(root, 'test/fixtures/signal-child.js')], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
+    const env = signal === 'crash' ? { ...process.env, CRASH: '1' } : process.env;
+    const child = spawn(process.execPath, [join(root, 'test/fixtures/signal-child.js')], { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] });
     let out = '';
     let readyHeld = -1;
     child.stdout.on('data', (chunk: Buffer) => {
@@ -15,7 +16,7 @@ function signalled(signal: NodeJS.Signals): Promise<{ exitCode: number | null; r
       const ready = /^ready (\d+)$/mu.exec(out);
       if (ready && readyHeld < 0) {
         readyHeld = Number(ready[1]);
-        child.kill(signal);
+        if (signal !== 'crash') child.kill(signal);
       }
     });
     const timer = setTimeout(() => {
@@ -32,11 +33,12 @@ function signalled(signal: NodeJS.Signals): Promise<{ exitCode: number | null; r
 
 // The virtual ports live inside the child process, so its synth is what reports: the test checks
 // that the panic sequence reached it after the signal and before the process exited.
-describe('signals end the session with a panic first', () => {
+describe('signals and crashes end the session with a panic first', () => {
   it.each([
     ['SIGINT', 130],
     ['SIGTERM', 143],
     ['SIGHUP', 129],
+    ['crash', 70],
   ] as const)('%s: notes off, pedals up, All Notes Off and centred bends reach the synth; exit %i', async (signal, code) => {
     const { exitCode, report, readyHeld } = await signalled(signal);
     expect(readyHeld).toBe(4); // a chord was sounding when the signal came
