@@ -6,7 +6,7 @@ import { loadTuningPreset } from '../presets/tuning-presets.js';
 import { A440, DEFAULT_WOLF_LIMITS, frequency, parseReference } from '../tuning/index.js';
 import { renderDyads } from '../audio/preview.js';
 import { writeWav } from '../audio/wav.js';
-import { writeOutputFile } from './render-command.js';
+import { writeOutputFile } from '../util/files.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from './io.js';
 import { integerOption, numberOption } from './options.js';

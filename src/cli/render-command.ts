@@ -3,7 +3,6 @@ import { renderPreview, type VoiceKind } from '../audio/preview.js';
 import { playSampleSet } from '../audio/sample-set.js';
 import { writeWav } from '../audio/wav.js';
 import { progressBar } from './progress.js';
-import { readFileSync, renameSync, writeFileSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { renderEvents, type RenderSummary } from '../render/render-midi.js';
 import { readMidiFile, writeMidiFile } from '../render/smf.js';
@@ -11,28 +10,8 @@ import { createRouter, formatChannels, resolveEngineOptions } from '../router/se
 import { formatReference, type Reference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
+import { readInputFile, writeOutputFile } from '../util/files.js';
 import type { CommandIo } from './io.js';
-
-export function readInputFile(file: string): Uint8Array {
-  try {
-    return readFileSync(file);
-  } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    throw new UserError(code === 'ENOENT' ? `${file}: no such file` : `${file}: cannot be read (${code ?? String(error)})`);
-  }
-}
-
-/** Writes through a temporary file and a rename, so a failed write never leaves half a file. */
-export function writeOutputFile(file: string, bytes: Uint8Array): void {
-  const temporary = `${file}.${process.pid}.tmp`;
-  try {
-    writeFileSync(temporary, bytes);
-    renameSync(temporary, file);
-  } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    throw new UserError(`${file}: cannot be written (${code ?? String(error)})`);
-  }
-}
 
 export function summaryText(summary: RenderSummary, header: string): string {
   const rows: Array<[string, string]> = [

@@ -7,7 +7,8 @@ import { createRouter, resolveEngineOptions } from '../router/setup.js';
 import { DEFAULT_WOLF_LIMITS } from '../tuning/index.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import type { CommandIo } from './io.js';
-import { describeSetup, readInputFile } from './render-command.js';
+import { readInputFile } from '../util/files.js';
+import { describeSetup } from './render-command.js';
 import { makeStyle, wantsColour } from './style.js';
 import { renderTable, signed } from './table.js';
 

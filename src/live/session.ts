@@ -7,7 +7,7 @@ import { UserError } from '../util/errors.js';
 import { enableMidi } from '../io/midi-system.js';
 import type { CommandIo } from '../cli/io.js';
 import { makeStyle, wantsColour } from '../cli/style.js';
-import { writeOutputFile } from '../cli/render-command.js';
+import { writeOutputFile } from '../util/files.js';
 import { Bridge } from './bridge.js';
 import { LiveView } from './display.js';
 import { Recorder } from './recorder.js';

@@ -41,11 +41,6 @@ export function chromaOf(pc: PitchClass): number {
   return mod(7 * pc.fifths, 12);
 }
 
-/** Moves a pitch class along the line of fifths. */
-export function transpose(pc: PitchClass, fifths: number): PitchClass {
-  return pitchClass(pc.fifths + fifths);
-}
-
 /** True when two pitch classes share a chroma but are spelled differently (G♯ and A♭). */
 export function areEnharmonic(a: PitchClass, b: PitchClass): boolean {
   return a.fifths !== b.fifths && chromaOf(a) === chromaOf(b);

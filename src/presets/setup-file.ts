@@ -1,9 +1,8 @@
-import { readFileSync } from 'node:fs';
 import { parsePitchClass, parseWindow, type KeyboardWindow } from '../pitch/index.js';
 import type { Action, Binding, Trigger } from '../spelling/control-map.js';
 import type { SplitKey } from '../spelling/controlled.js';
 import { parseKey, type DeclaredKey } from '../spelling/keys.js';
-import { UserError } from '../util/errors.js';
+import { readTextFile } from '../util/files.js';
 import { collecting, parseJsonText, throwProblems, zodProblems, type Problem } from './problems.js';
 import { setupSchema, type ControlJson, type SetupJson } from './setup-schema.js';
 
@@ -95,14 +94,7 @@ export function checkSetup(text: string, file: string): { setup: SetupFile | und
 }
 
 export function loadSetupFile(file: string): SetupFile {
-  let text: string;
-  try {
-    text = readFileSync(file, 'utf8');
-  } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    throw new UserError(code === 'ENOENT' ? `${file}: no such file` : `${file}: cannot be read (${code ?? String(error)})`);
-  }
-  const { setup, problems } = checkSetup(text, file);
+  const { setup, problems } = checkSetup(readTextFile(file), file);
   if (!setup) throwProblems(file, problems, `run "diesis check ${file}" to see them all`);
   return setup;
 }

@@ -1,4 +1,4 @@
-import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import { existsSync, readdirSync } from 'node:fs';
 import { basename, join, resolve, sep } from 'node:path';
 import { packageRoot } from '../util/package-root.js';
 import { chromaOf, formatPitchClass, parsePitchClass, pitchClass, type PitchClass } from '../pitch/index.js';
@@ -17,6 +17,7 @@ import {
   type TuningKind,
 } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
+import { readTextFile } from '../util/files.js';
 import { collecting, parseJsonText, throwProblems, zodProblems, type Problem } from './problems.js';
 import { tuningPresetSchema, type TuningPresetJson } from './tuning-schema.js';
 
@@ -129,18 +130,9 @@ export function checkTuningPreset(text: string, file: string, id = basename(file
   return { preset, problems };
 }
 
-function readText(file: string): string {
-  try {
-    return readFileSync(file, 'utf8');
-  } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    throw new UserError(code === 'ENOENT' ? `${file}: no such file` : `${file}: cannot be read (${code ?? String(error)})`);
-  }
-}
-
 /** Reads and validates a preset file; the first problem becomes a one-line error. */
 export function loadTuningPresetFile(file: string, id?: string): TuningPreset {
-  const check = checkTuningPreset(readText(file), file, id);
+  const check = checkTuningPreset(readTextFile(file), file, id);
   if (!check.preset) throwProblems(file, check.problems, `run "diesis check ${file}" to see them all`);
   return check.preset;
 }

@@ -18,21 +18,21 @@ const common = {
   reference: z.string().optional().describe('default reference pitch, as A4=415'),
 };
 
-export const regularPresetSchema = z.strictObject({
+const regularPresetSchema = z.strictObject({
   ...common,
   kind: z.literal('regular'),
   fifth: intervalSpecSchema,
   origin: z.string().optional(),
 });
 
-export const justPresetSchema = z.strictObject({
+const justPresetSchema = z.strictObject({
   ...common,
   kind: z.literal('just'),
   tonic: z.string().optional(),
   degrees: z.record(z.string(), z.string()).refine((d) => Object.keys(d).length > 0, 'must list at least the tonic'),
 });
 
-export const circulatingPresetSchema = z.strictObject({
+const circulatingPresetSchema = z.strictObject({
   ...common,
   kind: z.literal('circulating'),
   origin: z.string().optional(),

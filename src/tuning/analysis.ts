@@ -36,10 +36,6 @@ export function pureCents(i: PureInterval): number {
   return 1200 * Math.log2(i.p / i.q);
 }
 
-export function formatPure(i: PureInterval): string {
-  return `${i.p}/${i.q}`;
-}
-
 /** A compound-aware pure interval: the octave-reduced one times 2^octaves. */
 export interface PureTarget {
   readonly interval: PureInterval;

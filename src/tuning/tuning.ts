@@ -1,4 +1,3 @@
-import Fraction from 'fraction.js';
 import { chromaOf, octavesFromC4, pitchClass, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import { cents, multiply, power, ratio, UNISON, type PitchRatio } from './ratio.js';
 import { PURE_FIFTH } from './interval-spec.js';
@@ -125,4 +124,3 @@ export function chainToChromaSizes(start: PitchClass, fifths: readonly PitchRati
   return byChroma;
 }
 
-export const OCTAVE = ratio(new Fraction(2));
