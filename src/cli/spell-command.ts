@@ -29,7 +29,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
     const content = readMidiFile(readInputFile(input), input);
     let tick = 0;
     const engine = resolveEngineOptions({ ...options, gather: 'same-time' });
-    const report = new SpellReport(engine.reference, DEFAULT_WOLF_LIMITS);
+    const report = new SpellReport(DEFAULT_WOLF_LIMITS);
     const router = createRouter({
       ...engine,
       observer: (e) => {

@@ -1,6 +1,6 @@
 import { chromaOf, formatPitchClass, formatSpelledPitch, nearestSpelling, pitchClass, type NameStyle, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import type { RouterEvent } from '../router/router.js';
-import { equalTemperedHz, PURE_FIFTH_INTERVAL, PURE_MAJOR_THIRD, pureCents, type Reference, type WolfLimits } from '../tuning/index.js';
+import { PURE_FIFTH_INTERVAL, PURE_MAJOR_THIRD, pureCents, type WolfLimits } from '../tuning/index.js';
 import { mod } from '../util/errors.js';
 
 /** One spelled note-on of a file, as `diesis spell` reports it. */
@@ -31,10 +31,7 @@ export class SpellReport {
   private readonly held = new Map<number, SpellRow>();
   private readonly wolves = new Map<string, WolfCount>();
 
-  constructor(
-    private readonly reference: Reference,
-    private readonly limits: WolfLimits,
-  ) {}
+  constructor(private readonly limits: WolfLimits) {}
 
   note(event: Extract<RouterEvent, { type: 'note' }>, tick: number): void {
     const row: SpellRow = {
@@ -44,7 +41,7 @@ export class SpellReport {
       channel: event.inChannel + 1,
       pitch: event.pitch,
       hz: event.hz,
-      cents: 1200 * Math.log2(event.hz / equalTemperedHz(this.reference, event.inKey)),
+      cents: event.cents,
     };
     for (const other of this.held.values()) this.checkPair(other, row);
     this.held.set(event.source * 2048 + event.inChannel * 128 + event.inKey, row);

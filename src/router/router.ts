@@ -58,10 +58,7 @@ export interface RouterStats {
   notesOut: number;
   notesDropped: number;
   outOfRange: number;
-  bytesIn: number;
-  bytesOut: number;
   malformedBytes: number;
-  panics: number;
 }
 
 interface Voice {
@@ -87,7 +84,7 @@ type ParamSelection = 'none' | 'rpn' | 'nrpn';
  * on panic.
  */
 export class Router {
-  readonly stats: RouterStats = { notesIn: 0, notesOut: 0, notesDropped: 0, outOfRange: 0, bytesIn: 0, bytesOut: 0, malformedBytes: 0, panics: 0 };
+  readonly stats: RouterStats = { notesIn: 0, notesOut: 0, notesDropped: 0, outOfRange: 0, malformedBytes: 0 };
   private readonly parsers = new Map<number, MidiStreamParser>();
   /** Keys down, by input id (source, channel, key). */
   private readonly down = new Map<number, Voice>();
@@ -144,7 +141,6 @@ export class Router {
   }
 
   private emit(data: number[]): void {
-    this.stats.bytesOut += data.length;
     this.out.push({ time: this.now, data });
   }
 
@@ -165,7 +161,6 @@ export class Router {
   /** Feeds input bytes from one source (a device); any bytes at all, whole messages or not. */
   process(time: number, bytes: ArrayLike<number>, source = 0): TimedMessage[] {
     return this.collect(time, () => {
-      this.stats.bytesIn += bytes.length;
       let parser = this.parsers.get(source);
       if (!parser) {
         parser = new MidiStreamParser();
@@ -560,7 +555,6 @@ export class Router {
   }
 
   private doPanic(reason: string): void {
-    this.stats.panics++;
     this.pending = [];
     for (const voice of this.sounding) this.silence(voice, 0);
     for (const id of this.down.keys()) this.setup.speller.noteOff(this.contextOf(id, 0));

@@ -1,5 +1,5 @@
 import type { TimedMessage } from '../../src/midi/bytes.js';
-import { DEFAULT_WINDOW, spellKey, type KeyboardWindow, type SpelledPitch } from '../../src/pitch/index.js';
+import { DEFAULT_WINDOW, spellKey, type SpelledPitch } from '../../src/pitch/index.js';
 import { createRouter, resolveEngineOptions, type EngineOptionsInput } from '../../src/router/setup.js';
 import type { Router, RouterEvent } from '../../src/router/router.js';
 import { frequency } from '../../src/tuning/index.js';
