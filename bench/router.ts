@@ -58,7 +58,7 @@ function play(router: Router, movement: Movement, timings?: number[]): { bytesIn
 export function benchRouter(): void {
   const corpus = loadCorpus();
   if (corpus.length === 0) {
-    process.stdout.write('\n(router bench skipped: ../shared/corpus/mozart not found)\n');
+    process.stdout.write('\n(router bench skipped: corpus/mozart not found)\n');
     return;
   }
   const tuning = loadTuningPreset('meantone-1-4').tuning;

@@ -34,7 +34,7 @@ const pct = (c: number, n: number): string => `${((100 * c) / n).toFixed(2)}%`;
 export function benchSpelling(parameters: FollowParameters = DEFAULT_FOLLOW): void {
   const corpus = loadCorpus();
   if (corpus.length === 0) {
-    process.stdout.write('\n(spelling bench skipped: ../shared/corpus/mozart not found)\n');
+    process.stdout.write('\n(spelling bench skipped: corpus/mozart not found)\n');
     return;
   }
   heading('spelling accuracy on the Mozart corpus (notes spelled as written)');

@@ -10,8 +10,8 @@ import { runCli } from './run-cli.js';
 import { tempDir } from '../support/temp.js';
 
 // Mozart piano sonatas, derived from Craig Stuart Sapp's digital edition of the Alte Mozart-Ausgabe,
-// CC BY-NC-SA 4.0 (see ../shared/corpus/mozart/LICENSE.md).
-const CORPUS = join(import.meta.dirname, '../../../shared/corpus/mozart');
+// CC BY-NC-SA 4.0 (see corpus/mozart/LICENSE.md).
+const CORPUS = join(import.meta.dirname, '../../corpus/mozart');
 const dir = tempDir('diesis-render-');
 
 /**

@@ -3,8 +3,8 @@ import { describe, expect, it } from 'vitest';
 import { runCli } from './run-cli.js';
 
 // Mozart piano sonatas, derived from Craig Stuart Sapp's digital edition of the Alte Mozart-Ausgabe,
-// CC BY-NC-SA 4.0 (see ../shared/corpus/mozart/LICENSE.md).
-const movement = join(import.meta.dirname, '../../../shared/corpus/mozart/sonata01-2.mid');
+// CC BY-NC-SA 4.0 (see corpus/mozart/LICENSE.md).
+const movement = join(import.meta.dirname, '../../corpus/mozart/sonata01-2.mid');
 
 interface Row {
   tick: number;

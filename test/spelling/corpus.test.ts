@@ -5,7 +5,7 @@ import { parseWrittenSpellings, scoreSpelling, spellEvents } from '../../src/spe
 import { FollowSpeller } from '../../src/spelling/follow.js';
 import { fixedSpeller } from '../../src/spelling/speller.js';
 
-// The open corpus in ../shared/corpus/mozart: Mozart piano sonatas with their written spellings,
+// The open corpus in corpus/mozart: Mozart piano sonatas with their written spellings,
 // derived from Craig Stuart Sapp's digital edition of the Alte Mozart-Ausgabe (1878),
 // CC BY-NC-SA 4.0 (see its LICENSE.md). Causal spelling is compared with the notes as written.
 const corpus = loadCorpus();
