@@ -8,7 +8,7 @@ import { writeWav } from '../src/audio/wav.js';
 import { parseFifthsRange } from '../src/pitch/index.js';
 import { loadTuningPreset } from '../src/presets/tuning-presets.js';
 import { renderEvents } from '../src/render/render-midi.js';
-import { createRouter, resolveEngineOptions } from '../src/router/setup.js';
+import { createEngine } from '../src/router/setup.js';
 import { A440 } from '../src/tuning/index.js';
 import { loadCorpus } from './corpus.js';
 import { heading } from './timing.js';
@@ -20,9 +20,8 @@ export function benchAudio(): void {
   heading(`audio: rendering ${movement.name} at 44.1 kHz (seconds of audio per second of compute)`);
   const tuning = loadTuningPreset('meantone-1-4').tuning;
   const timed = (mode: 'bend' | 'samples', layout?: ReadonlyMap<number, number>) => {
-    const engine = resolveEngineOptions({ tuning, reference: A440, mode, sampleLayout: layout, gather: 'same-time' });
     let times: number[] = [];
-    const { messages } = renderEvents(movement.midi, createRouter(engine), engine.releaseGuardMs, undefined, (t) => (times = t));
+    const { messages } = renderEvents(movement.midi, createEngine({ tuning, reference: A440, mode, sampleLayout: layout, gather: 'same-time' }), undefined, (t) => (times = t));
     return messages.map((m, i) => ({ time: times[i] ?? 0, data: m.data }));
   };
   const measure = (label: string, render: () => { channels: readonly Float32Array[]; sampleRate: number }) => {

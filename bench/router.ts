@@ -2,7 +2,7 @@ import { performance } from 'node:perf_hooks';
 import { pitchBend } from '../src/midi/bytes.js';
 import { centsToBend } from '../src/midi/pitch-bend.js';
 import { loadTuningPreset } from '../src/presets/tuning-presets.js';
-import type { OutputCounters, OutputStrategy, Placement } from '../src/router/output.js';
+import type { OutputContext, OutputStrategy, Placement } from '../src/router/output.js';
 import { PitchTable, type TunedNote } from '../src/router/pitch-table.js';
 import { Router } from '../src/router/router.js';
 import { createRouter, DEFAULT_CHANNELS, type EngineOptionsInput } from '../src/router/setup.js';
@@ -13,31 +13,18 @@ import { heading, percentile } from './timing.js';
 
 /** The yardstick: a channel per note in turn, and a pitch bend before every note-on. */
 class NaiveOutput implements OutputStrategy {
-  readonly mode = 'naive';
-  readonly counters: OutputCounters = { retunes: 0, steals: 0 };
   readonly zoneChannels = DEFAULT_CHANNELS;
   readonly allChannels = DEFAULT_CHANNELS;
   private next = 0;
   start(): void {}
-  place(note: TunedNote, _time: number, context: { emit: (d: number[]) => void }): Placement {
+  place(note: TunedNote, _time: number, context: OutputContext): Placement {
     const channel = DEFAULT_CHANNELS[this.next++ % DEFAULT_CHANNELS.length]!;
     context.emit(pitchBend(channel, centsToBend(note.offset.residual, 48).value));
-    this.counters.retunes++;
     return { channel, key: note.nearestKey };
-  }
-  unitOf(): number {
-    return -1;
-  }
-  retune(): boolean {
-    return false;
   }
   voiceEnded(): void {}
   wheel(): void {}
-  reassert(): void {}
   panic(): void {}
-  usedChannels(): number[] {
-    return [...DEFAULT_CHANNELS];
-  }
 }
 
 function play(router: Router, movement: Movement, timings?: number[]): { bytesIn: number; bytesOut: number } {

@@ -1,6 +1,6 @@
 import { formatPitchClass, formatSpelledPitch, type NameStyle } from '../pitch/index.js';
-import { renderTable, signed } from '../cli/table.js';
-import type { Style } from '../cli/style.js';
+import { renderTable, signed } from '../text/table.js';
+import type { Style } from '../text/style.js';
 import { formatReference } from '../tuning/index.js';
 import type { Chart, ChartInterval } from './chart.js';
 

@@ -8,9 +8,9 @@ import { renderDyads } from '../audio/preview.js';
 import { writeWav } from '../audio/wav.js';
 import { writeOutputFile } from '../util/files.js';
 import { UserError } from '../util/errors.js';
-import type { CommandIo } from './io.js';
+import type { CommandIo } from '../util/io.js';
 import { integerOption, numberOption } from './options.js';
-import { makeStyle, wantsColour } from './style.js';
+import { makeStyle, wantsColour } from '../text/style.js';
 
 interface ChartOptions {
   ref?: string;

@@ -3,11 +3,13 @@ import { loadSampleSet, type LoadedSampleSet } from '../audio/sample-set.js';
 import { parseWindow } from '../pitch/index.js';
 import { loadSetupFile, type SetupFile } from '../presets/setup-file.js';
 import { loadTuningPreset, type TuningPreset } from '../presets/tuning-presets.js';
-import { OUTPUT_MODES, parseChannels, type EngineOptionsInput, type OutputMode } from '../router/setup.js';
+import { OUTPUT_MODE_IDS, OUTPUT_MODES, type EngineOptionsInput, type OutputMode } from '../router/setup.js';
+import type { ModeSetting } from '../router/output.js';
+import { parseChannels } from '../text/channels.js';
 import { ControlMap } from '../spelling/control-map.js';
 import { ControlledSpeller } from '../spelling/controlled.js';
 import { parseKey } from '../spelling/keys.js';
-import { createStrategy, STRATEGIES, type Strategy } from '../spelling/strategy.js';
+import { createStrategy, STRATEGIES, STRATEGY_ENTRIES, type Strategy } from '../spelling/strategy.js';
 import { A440, parseReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
 import { integerOption, numberOption } from './options.js';
@@ -48,9 +50,9 @@ export function addEngineOptions(command: Command): Command {
     .option('--key <key>', 'the key for --spelling key, or where follow starts, as "D minor"')
     .option('--window <from..to>', 'the 12 spellings for --spelling fixed (default: Eb..G#)')
     .option('--gather <ms>', 'live: wait this long for the rest of a chord (default: 0)', numberOption('--gather', 0, 100))
-    .addOption(new Option('--mode <mode>', 'how the synth is retuned (default: bend)').choices([...OUTPUT_MODES]))
+    .addOption(new Option('--mode <mode>', 'how the synth is retuned (default: bend)').choices([...OUTPUT_MODE_IDS]))
     .addOption(new Option('--layout <layout>', 'bend mode: an MPE zone, or independent multitimbral channels (default: mpe)').choices(['mpe', 'multi']))
-    .option('--channels <list>', 'output channels 1–16; bend: the member channels, other modes: the first (default: 2-16)')
+    .option('--channels <list>', 'output channels 1–16: bend takes a list (default: 2-16), one-channel modes one channel (default: 1)')
     .option('--bend-range <semitones>', 'the synth’s pitch-bend range on the output channels (default: 48 for MPE, 2 for multi)', numberOption('--bend-range', 0.01, 96))
     .option('--no-bend-range-messages', 'do not send RPN 0 bend ranges (the synth is set by hand)')
     .option('--wheel-range <semitones>', 'the keyboard’s pitch-wheel range (default: 2)', numberOption('--wheel-range', 0.01, 96))
@@ -71,6 +73,26 @@ export interface ResolvedEngine {
   readonly sampleSet: LoadedSampleSet | undefined;
 }
 
+/** The command-line name of each mode-specific setting, for refusals. */
+const SETTING_FLAGS: Readonly<Record<ModeSetting, string>> = {
+  layout: '--layout',
+  bendRange: '--bend-range',
+  octaveForm: '--octave-form',
+  mtsDevice: '--mts-device',
+  mtsProgram: '--mts-program',
+  sampleSet: '--sample-set',
+};
+
+/** Refuses a mode-specific option given for a mode it does not apply to (one line, with the modes it belongs to). */
+function refuseForeignSettings(mode: OutputMode, given: Readonly<Record<ModeSetting, unknown>>): void {
+  const applies = OUTPUT_MODES[mode].settings as readonly ModeSetting[];
+  for (const setting of Object.keys(SETTING_FLAGS) as ModeSetting[]) {
+    if (given[setting] === undefined || applies.includes(setting)) continue;
+    const owners = OUTPUT_MODE_IDS.filter((m) => (OUTPUT_MODES[m].settings as readonly ModeSetting[]).includes(setting));
+    throw new UserError(`${SETTING_FLAGS[setting]} applies to --mode ${owners.join(' or ')}, not to --mode ${mode}`, 2);
+  }
+}
+
 /** Turns the command line (over a setup file) into engine options; every bad value is one clear line. */
 export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const setup = cli.setup === undefined ? undefined : loadSetupFile(cli.setup);
@@ -78,13 +100,28 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const sampleSet = cli.sampleSet === undefined ? undefined : loadSampleSet(cli.sampleSet);
   const preset = loadTuningPreset(cli.tuning ?? json?.tuning ?? 'meantone-1-4');
   const refText = cli.ref ?? json?.reference;
-  const mode = sampleSet ? 'samples' : (cli.mode ?? json?.output?.mode ?? 'bend');
-  const channelText = cli.channels ?? json?.output?.channels ?? '2-16';
-  const channels = parseChannels(channelText);
-  if (mode !== 'bend' && channels.length > 1 && channelText !== '2-16') {
+  const mode: OutputMode = sampleSet ? 'samples' : (cli.mode ?? json?.output?.mode ?? 'bend');
+  if (sampleSet && cli.mode !== undefined && cli.mode !== 'samples') throw new UserError(`--sample-set plays through --mode samples, not --mode ${cli.mode}`, 2);
+  refuseForeignSettings(mode, {
+    layout: cli.layout,
+    bendRange: cli.bendRange,
+    octaveForm: cli.octaveForm,
+    mtsDevice: cli.mtsDevice,
+    mtsProgram: cli.mtsProgram,
+    sampleSet: cli.sampleSet,
+  });
+  const entry = OUTPUT_MODES[mode];
+  const channelText = cli.channels ?? json?.output?.channels;
+  const channels = channelText === undefined ? undefined : parseChannels(channelText, cli.channels !== undefined ? '--channels' : `${setup?.file}: output.channels`);
+  if (channels && entry.channels === 'one' && channels.length > 1) {
     throw new UserError(`--channels "${channelText}": --mode ${mode} sends on one channel; give just one`, 2);
   }
-  const strategy = cli.spelling ?? json?.spelling?.strategy ?? 'follow';
+  if (channels && entry.channels === 'set') throw new UserError(`--channels: --mode ${mode} uses the sample set's own channels`, 2);
+  const windowGiven = cli.window !== undefined;
+  const strategy: Strategy = cli.spelling ?? (windowGiven ? 'fixed' : (json?.spelling?.strategy ?? 'follow'));
+  const strategyEntry = STRATEGY_ENTRIES[strategy];
+  if (cli.key !== undefined && !strategyEntry.usesKey) throw new UserError(`--key has no effect with --spelling ${strategy}; use --spelling key or follow, or --window for fixed spellings`, 2);
+  if (windowGiven && !strategyEntry.usesWindow) throw new UserError(`--window has no effect with --spelling ${strategy}; it sets the spellings of --spelling fixed`, 2);
   const key = cli.key !== undefined ? parseKey(cli.key, '--key') : setup?.key;
   if (strategy === 'key' && key === undefined) throw new UserError('--spelling key needs --key, as in --key "D minor"', 2);
   const window = cli.window !== undefined ? parseWindow(cli.window, '--window') : setup?.window;
@@ -95,7 +132,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     reference: refText !== undefined ? parseReference(refText, cli.ref !== undefined ? '--ref' : `${setup?.file}: reference`) : (preset.reference ?? A440),
     mode,
     layout: cli.layout ?? json?.output?.layout,
-    channels: mode === 'bend' ? channels : [channels[0] ?? 0],
+    channels,
     bendRange: cli.bendRange ?? json?.output?.bendRange,
     sendBendRange: cli.bendRangeMessages === false ? false : json?.output?.sendBendRange,
     wheelRange: cli.wheelRange ?? json?.keyboard?.wheelRange,
@@ -106,7 +143,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     octaveForm: octaveForm === undefined ? undefined : octaveForm === '1' ? 1 : 2,
     speller,
     sampleLayout: sampleSet?.layout,
-    controls: setup && setup.bindings.length > 0 ? new ControlMap(setup.bindings, speller) : undefined,
+    controls: new ControlMap(setup?.bindings ?? [], speller),
     gather: cli.gather ?? json?.spelling?.gatherMs,
   };
   return { preset, setup, strategy, speller, options, sampleSet };

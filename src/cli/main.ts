@@ -2,7 +2,7 @@ import { Command, CommanderError } from 'commander';
 import { disableMidi } from '../io/midi-system.js';
 import { UserError } from '../util/errors.js';
 import { registerChart } from './chart-command.js';
-import type { CommandIo } from './io.js';
+import type { CommandIo } from '../util/io.js';
 import { registerPresetCommands } from './preset-commands.js';
 import { registerRender } from './render-command.js';
 import { registerSpell } from './spell-command.js';

@@ -5,9 +5,9 @@ import { formatProblem, parseJsonText } from '../presets/problems.js';
 import { checkSetup } from '../presets/setup-file.js';
 import { checkTuningPreset, loadBuiltInTuningPresets, PRESETS_DIR } from '../presets/tuning-presets.js';
 import { UserError } from '../util/errors.js';
-import type { CommandIo } from './io.js';
-import { makeStyle, wantsColour } from './style.js';
-import { renderTable } from './table.js';
+import type { CommandIo } from '../util/io.js';
+import { makeStyle, wantsColour } from '../text/style.js';
+import { renderTable } from '../text/table.js';
 
 export function registerPresetCommands(program: Command, io: CommandIo): void {
   program

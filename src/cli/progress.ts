@@ -1,4 +1,4 @@
-import type { Output } from './io.js';
+import type { Output } from '../util/io.js';
 
 /** A progress bar on a terminal (nothing elsewhere): `update(share)` with 0…1, `done()` clears it. */
 export function progressBar(stream: Output, label: string): { update(share: number): void; done(): void } {

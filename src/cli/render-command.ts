@@ -6,34 +6,34 @@ import { progressBar } from './progress.js';
 import { resolve } from 'node:path';
 import { renderEvents, type RenderSummary } from '../render/render-midi.js';
 import { readMidiFile, writeMidiFile } from '../render/smf.js';
-import { createRouter, formatChannels, resolveEngineOptions } from '../router/setup.js';
-import { formatReference, type Reference } from '../tuning/index.js';
+import { createEngine, OUTPUT_MODES, type EngineOptions } from '../router/setup.js';
+import { formatChannels } from '../text/channels.js';
+import { formatReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import { readInputFile, writeOutputFile } from '../util/files.js';
-import type { CommandIo } from './io.js';
+import type { CommandIo } from '../util/io.js';
 
 export function summaryText(summary: RenderSummary, header: string): string {
   const rows: Array<[string, string]> = [
     ['notes', `${summary.notesIn} in, ${summary.notesOut} out${summary.notesDropped ? `, ${summary.notesDropped} dropped (outside the synth's keys)` : ''}`],
     ['channels used', formatChannels(summary.channelsUsed) || 'none'],
-    [summary.mode === 'bend' ? 'bend messages' : summary.mode === 'pass' ? 'tuning messages' : 'MTS messages', String(summary.retunes)],
+    [OUTPUT_MODES[summary.mode].retuneLabel, String(summary.retunes)],
     ['steals', String(summary.steals)],
-    ['out of range', summary.outOfRange ? `${summary.outOfRange} notes needed more bend than the range allows` : '0'],
+    ['out of range', summary.outOfRange ? `${summary.outOfRange} notes needed more than the output can tune` : '0'],
     ['bytes out/in', summary.bytesPerInputByte.toFixed(3)],
   ];
+  if (summary.substitutions) rows.push(['substituted', `${summary.substitutions} notes played as the nearest spelling the sample set has`]);
   if (summary.malformedBytes) rows.push(['malformed bytes', `${summary.malformedBytes} ignored`]);
   return [header, ...rows.map(([k, v]) => `  ${k.padEnd(16)}${v}`)].join('\n') + '\n';
 }
 
-export function describeSetup(tuningName: string, reference: Reference, mode: string, layout: string | undefined, channels: readonly number[]): string {
-  const where = mode === 'bend' ? `${layout} on channels ${formatChannels(channels)}` : mode === 'samples' ? `on channels ${formatChannels(channels)}` : `on channel ${(channels[0] ?? 0) + 1}`;
-  return `${tuningName} at ${formatReference(reference)} Hz, ${mode} ${where}`;
-}
-
-/** The channels an engine sends on, for the summary line. */
-export function channelsOf(engine: { mode: string; channels: readonly number[]; sampleLayout?: ReadonlyMap<number, number> | undefined }): readonly number[] {
-  return engine.mode === 'samples' && engine.sampleLayout ? [...new Set(engine.sampleLayout.values())] : engine.channels;
+/** One line: tuning, reference, mode and where it sends. */
+export function describeSetup(tuningName: string, engine: Pick<EngineOptions, 'reference' | 'mode' | 'layout' | 'channels' | 'sampleLayout'>): string {
+  const kind = OUTPUT_MODES[engine.mode].channels;
+  const channels = kind === 'set' && engine.sampleLayout ? [...new Set(engine.sampleLayout.values())] : engine.channels;
+  const where = engine.mode === 'bend' ? `${engine.layout} on channels ${formatChannels(channels)}` : kind === 'set' ? `on channels ${formatChannels(channels)}` : `on channel ${(channels[0] ?? 0) + 1}`;
+  return `${tuningName} at ${formatReference(engine.reference)} Hz, ${engine.mode} ${where}`;
 }
 
 interface RenderOptions extends EngineCliOptions {
@@ -59,19 +59,19 @@ export function registerRender(program: Command, io: CommandIo): void {
     for (const out of [cli.output, cli.wav]) if (out && resolve(out) === resolve(input)) throw new UserError(`${out}: refusing to overwrite the input file`, 2);
     const { preset, options, sampleSet } = resolveEngineCli(cli);
     const content = readMidiFile(readInputFile(input), input);
-    const engine = resolveEngineOptions({ ...options, gather: 'same-time' }); // in a file, equal onsets are a chord
+    const engine = createEngine({ ...options, gather: options.gather ?? 'same-time' }); // in a file, equal onsets are a chord
     let times: number[] = [];
-    const { messages, summary } = renderEvents(content, createRouter(engine), engine.releaseGuardMs, undefined, (ms) => (times = ms));
+    const { messages, summary } = renderEvents(content, engine, undefined, (ms) => (times = ms));
     if (cli.output) writeOutputFile(cli.output, writeMidiFile(content.division, content.meta, [messages]));
     if (cli.wav) {
       const bar = progressBar(io.stderr, 'rendering audio');
       const timed = messages.map((m, i) => ({ time: times[i] ?? 0, data: m.data }));
       const rate = Number(cli.rate);
-      const audio = sampleSet ? playSampleSet(timed, sampleSet, rate, bar.update) : renderPreview(timed, { sampleRate: rate, voice: cli.voice, synthA4: engine.synthA4, progress: bar.update });
+      const audio = sampleSet ? playSampleSet(timed, sampleSet, rate, bar.update) : renderPreview(timed, { sampleRate: rate, voice: cli.voice, synthA4: engine.options.synthA4, progress: bar.update });
       bar.done();
       writeOutputFile(cli.wav, writeWav(audio, cli.bits === '24' ? 24 : 16));
     }
-    const setup = describeSetup(preset.name, engine.reference, engine.mode, engine.layout, channelsOf(engine));
+    const setup = describeSetup(preset.name, engine.options);
     const written = [cli.output, cli.wav].filter(Boolean).join(' and ');
     io.stdout.write(summaryText(summary, `${input} → ${written}: ${setup}`));
   });

@@ -4,7 +4,7 @@ import { parseFifthsRange } from '../pitch/index.js';
 import { loadTuningPreset } from '../presets/tuning-presets.js';
 import { A440, formatReference, parseReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
-import type { CommandIo } from './io.js';
+import type { CommandIo } from '../util/io.js';
 import { integerOption, numberOption } from './options.js';
 import { progressBar } from './progress.js';
 

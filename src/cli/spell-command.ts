@@ -3,14 +3,14 @@ import { formatSpelledPitch } from '../pitch/index.js';
 import { renderEvents } from '../render/render-midi.js';
 import { readMidiFile } from '../render/smf.js';
 import { SpellReport } from '../render/spell-report.js';
-import { createRouter, resolveEngineOptions } from '../router/setup.js';
+import { createEngine } from '../router/setup.js';
 import { DEFAULT_WOLF_LIMITS } from '../tuning/index.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
-import type { CommandIo } from './io.js';
+import type { CommandIo } from '../util/io.js';
 import { readInputFile } from '../util/files.js';
 import { describeSetup } from './render-command.js';
-import { makeStyle, wantsColour } from './style.js';
-import { renderTable, signed } from './table.js';
+import { makeStyle, wantsColour } from '../text/style.js';
+import { renderTable, signed } from '../text/table.js';
 
 interface SpellOptions extends EngineCliOptions {
   json?: boolean;
@@ -28,23 +28,23 @@ export function registerSpell(program: Command, io: CommandIo): void {
     const { preset, options, strategy } = resolveEngineCli(cli);
     const content = readMidiFile(readInputFile(input), input);
     let tick = 0;
-    const engine = resolveEngineOptions({ ...options, gather: 'same-time' });
     const report = new SpellReport(DEFAULT_WOLF_LIMITS);
-    const router = createRouter({
-      ...engine,
+    const engine = createEngine({
+      ...options,
+      gather: options.gather ?? 'same-time',
       observer: (e) => {
         if (e.type === 'note') report.note(e, tick);
-        else if (e.type === 'key-up') report.noteOff(e.source, e.inChannel, e.inKey);
+        else if (e.type === 'key-up') report.noteOff(e.id);
       },
     });
-    renderEvents(content, router, engine.releaseGuardMs, (t) => (tick = t));
+    renderEvents(content, engine, (t) => (tick = t));
     if (cli.json) {
       io.stdout.write(report.jsonLines());
       return;
     }
     const names = { accidentals: cli.ascii ? ('ascii' as const) : ('unicode' as const) };
     const style = makeStyle(wantsColour(io.stdout));
-    io.stdout.write(style.bold(`${input}: ${describeSetup(preset.name, engine.reference, engine.mode, engine.layout, engine.channels)}, spelling ${strategy}`) + '\n');
+    io.stdout.write(style.bold(`${input}: ${describeSetup(preset.name, engine.options)}, spelling ${strategy}`) + '\n');
     io.stdout.write(
       renderTable(
         [

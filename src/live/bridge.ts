@@ -79,6 +79,14 @@ export class Bridge {
     return this.inputs.map((s) => s.port !== undefined);
   }
 
+  /** Each port asked for, by its name (the player's words until it has been found), and whether it is there. */
+  portStates(): { inputs: Array<{ name: string; connected: boolean }>; output: { name: string; connected: boolean } } {
+    return {
+      inputs: this.inputs.map((s) => ({ name: s.port?.name ?? s.query, connected: s.port !== undefined })),
+      output: { name: this.output?.name ?? this.options.output, connected: this.output !== undefined },
+    };
+  }
+
   private attach(slot: InputSlot): void {
     const port = findInput(slot.query);
     if (!port) return;

@@ -7,9 +7,9 @@ import { parseKey } from '../spelling/keys.js';
 import { createStrategy } from '../spelling/strategy.js';
 import { SynthModel } from '../synth/reference-synth.js';
 import { parseReference } from '../tuning/index.js';
-import type { CommandIo } from '../cli/io.js';
+import type { CommandIo } from '../util/io.js';
 import { virtualInput, virtualOutput } from '../io/virtual-ports.js';
-import { runUntilStopped } from '../cli/play-command.js';
+import { runUntilStopped } from './run.js';
 
 /** One step of the demo: at `beat`, the keyboard plays `chord` (held `hold` beats), or the pedal moves. */
 type Step = { beat: number; chord: string[]; hold?: number } | { beat: number; pedal: 'flip' | 'sustain'; down: boolean };
@@ -56,7 +56,7 @@ export async function runDemo(io: CommandIo): Promise<number> {
   const tuning = loadTuningPreset('meantone-1-4');
   const reference = parseReference('A4=415');
   const speller = new ControlledSpeller(createStrategy({ strategy: 'key', key: parseKey('D minor') }));
-  const controls = new ControlMap([{ trigger: { kind: 'cc', controller: FLIP_CC, channel: undefined, threshold: 64 }, action: { kind: 'flip' }, latch: false }], speller);
+  const controls = new ControlMap([{ trigger: { kind: 'cc', controller: FLIP_CC, channel: undefined, threshold: 64 }, action: { name: 'flip' }, latch: false }], speller);
   const decided: number[] = [];
   io.stdout.write('diesis demo: quarter-comma meantone at A4 = 415 Hz, spelled in D minor, into an MPE synth (virtual ports, no hardware).\n');
   io.stdout.write('The pedal (CC 80) flips black keys for the F minor and D♭ major bars; the last chord is held by the sustain pedal.\n\n');

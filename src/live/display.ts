@@ -1,9 +1,12 @@
 import { formatRange, formatSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
-import type { Router, RouterEvent } from '../router/router.js';
-import { formatChannels } from '../router/setup.js';
+import type { RouterEvent } from '../router/events.js';
+import type { NoteId } from '../router/note-id.js';
+import { keyOfNote } from '../router/note-id.js';
+import type { Tally } from '../router/tally.js';
 import type { ControlledSpeller } from '../spelling/controlled.js';
-import type { Style } from '../cli/style.js';
-import { signed } from '../cli/table.js';
+import { formatChannels } from '../text/channels.js';
+import type { Style } from '../text/style.js';
+import { signed } from '../text/table.js';
 import type { BridgeNotice } from './bridge.js';
 
 interface Sounding {
@@ -11,26 +14,37 @@ interface Sounding {
   readonly cents: number;
   readonly hz: number;
   readonly channel: number;
+  /** Its key is up and a pedal holds it. */
+  pedal: boolean;
+}
+
+export interface PortState {
+  readonly name: string;
+  readonly connected: boolean;
 }
 
 export interface ViewSources {
-  readonly router: Router;
   readonly speller: ControlledSpeller;
+  readonly tally: Tally;
   readonly strategy: string;
   readonly title: string;
+  /** Messages that could not be sent to the synth (its port missing or failing). */
   readonly lostMessages: () => number;
-  readonly ports: () => { inputs: boolean[]; output: boolean };
+  readonly ports: () => { inputs: readonly PortState[]; output: PortState };
 }
 
 /**
  * What the player sees: on a terminal a screen redrawn a few times a second (strategy, window,
  * pedals and latches, the notes sounding with their spellings and cents, channels, warnings);
- * elsewhere one line per decision. Pure apart from the clock-free state it keeps.
+ * elsewhere one line per decision. A fold over the engine's events: it never asks the engine.
  */
 export class LiveView {
-  private readonly sounding = new Map<number, Sounding>();
+  private readonly sounding = new Map<NoteId, Sounding>();
   private readonly notices: string[] = [];
   private lastPanic = '';
+  private sustain = false;
+  private sostenuto = false;
+  private passing = false;
 
   constructor(
     private readonly sources: ViewSources,
@@ -44,11 +58,31 @@ export class LiveView {
 
   /** Takes an engine event into the state the screen shows. */
   event(e: RouterEvent): void {
-    if (e.type === 'note') this.sounding.set(e.source * 2048 + e.inChannel * 128 + e.inKey, { pitch: e.pitch, cents: e.cents, hz: e.hz, channel: e.placement.channel + 1 });
-    else if (e.type === 'key-up') this.sounding.delete(e.source * 2048 + e.inChannel * 128 + e.inKey);
-    else if (e.type === 'panic') {
-      this.sounding.clear();
-      this.lastPanic = e.reason;
+    switch (e.type) {
+      case 'note':
+        this.sounding.set(e.id, { pitch: e.pitch, cents: e.cents, hz: e.hz, channel: e.placement.channel + 1, pedal: false });
+        break;
+      case 'key-up': {
+        const s = this.sounding.get(e.id);
+        if (s) s.pedal = true; // still sounding until its voice ends
+        break;
+      }
+      case 'voice-ended':
+        this.sounding.delete(e.id);
+        break;
+      case 'pedal':
+        if (e.pedal === 'sustain') this.sustain = e.down;
+        else this.sostenuto = e.down;
+        break;
+      case 'pass':
+        this.passing = e.on;
+        break;
+      case 'panic':
+        this.sounding.clear();
+        this.sustain = false;
+        this.sostenuto = false;
+        this.lastPanic = e.reason;
+        break;
     }
     const warning = this.warningOf(e);
     if (warning) this.remember(warning);
@@ -57,7 +91,8 @@ export class LiveView {
   /** The line to print for an event when there is no screen to redraw. */
   line(e: RouterEvent): string | undefined {
     if (e.type === 'note') {
-      return `${this.note(e.pitch).padEnd(5)} key ${String(e.inKey).padStart(3)}  ${signed(e.cents, 2, this.names.accidentals === 'ascii').padStart(8)} c  ${e.hz.toFixed(2).padStart(8)} Hz  → ch ${e.placement.channel + 1} key ${e.placement.key}`;
+      const instead = e.wanted ? `  (the set has no ${this.note(e.wanted)})` : '';
+      return `${this.note(e.pitch).padEnd(5)} key ${String(keyOfNote(e.id)).padStart(3)}  ${signed(e.cents, 2, this.names.accidentals === 'ascii').padStart(8)} c  ${e.hz.toFixed(2).padStart(8)} Hz  → ch ${e.placement.channel + 1} key ${e.placement.key}${instead}`;
     }
     const warning = this.warningOf(e);
     return warning && this.style.yellow(`! ${warning}`);
@@ -66,11 +101,11 @@ export class LiveView {
   private warningOf(e: RouterEvent): string | undefined {
     switch (e.type) {
       case 'steal':
-        return `stole a channel: ${e.voices} note(s) ended to make room`;
+        return `stole a channel: ${e.ids.length} note(s) ended to make room`;
       case 'out-of-range':
-        return `${this.note(e.pitch)} needs ${e.neededCents.toFixed(1)} cents: more than the bend range`;
+        return `${this.note(e.pitch)} needs ${e.neededCents.toFixed(1)} cents: more than the output can tune`;
       case 'note-dropped':
-        return `key ${e.inKey} dropped: ${e.reason}`;
+        return `${this.note(e.pitch)} dropped: ${e.reason}`;
       case 'panic':
         return `PANIC (${e.reason}): all notes off`;
       default:
@@ -91,25 +126,33 @@ export class LiveView {
 
   /** The whole screen, for a terminal. */
   frame(): string {
-    const { router, speller, strategy, title } = this.sources;
+    const { speller, strategy, title, tally } = this.sources;
     const s = this.style;
+    const o = speller.overrides;
     const on = (flag: boolean, label: string): string => (flag ? s.bold(s.green(`[${label}]`)) : s.dim(` ${label} `));
+    const port = (p: PortState): string => (p.connected ? s.green(p.name) : s.red(`${p.name} (unplugged)`));
     const ports = this.sources.ports();
     const lines: string[] = [];
     lines.push(s.bold(title));
     const window = formatRange(speller.currentWindow(), this.names);
-    lines.push(`spelling ${s.bold(strategy)}  window ${s.bold(window)}${speller.shift ? `  shift ${speller.shift > 0 ? '+' : ''}${speller.shift}` : ''}${router.passing ? s.yellow('  12-ET PASS') : ''}`);
-    lines.push(`pedals ${on(router.sustainDown, 'sustain')} ${on(router.sostenutoDown, 'sostenuto')}   latches ${on(speller.flip, 'flip')} ${on(speller.force === 'sharps', 'sharps')} ${on(speller.force === 'flats', 'flats')} ${on(speller.frozen, 'freeze')}`);
-    lines.push(`ports  in ${ports.inputs.map((ok, i) => (ok ? s.green(`${i + 1}:ok`) : s.red(`${i + 1}:GONE`))).join(' ')}  out ${ports.output ? s.green('ok') : s.red('GONE')}`);
+    lines.push(`spelling ${s.bold(strategy)}  window ${s.bold(window)}${o.shift ? `  shift ${o.shift > 0 ? '+' : ''}${o.shift}` : ''}${this.passing ? s.yellow('  12-ET PASS') : ''}`);
+    lines.push(`pedals ${on(this.sustain, 'sustain')} ${on(this.sostenuto, 'sostenuto')}   latches ${on(o.flip, 'flip')} ${on(o.force === 'sharps', 'sharps')} ${on(o.force === 'flats', 'flats')} ${on(o.frozen, 'freeze')}`);
+    lines.push(`from ${ports.inputs.map(port).join(', ')}  to ${port(ports.output)}`);
     lines.push('');
     const notes = [...this.sounding.values()].sort((a, b) => a.hz - b.hz);
     lines.push(s.bold(`sounding (${notes.length})`));
-    for (const n of notes.slice(-12)) lines.push(`  ${s.bold(this.note(n.pitch).padEnd(6))} ${signed(n.cents, 1).padStart(7)} c  ${n.hz.toFixed(2).padStart(8)} Hz  ch ${n.channel}`);
+    for (const n of notes.slice(-12)) lines.push(`  ${s.bold(this.note(n.pitch).padEnd(6))} ${signed(n.cents, 1).padStart(7)} c  ${n.hz.toFixed(2).padStart(8)} Hz  ch ${n.channel}${n.pedal ? s.dim('  pedal') : ''}`);
     lines.push('');
-    const used = router.output.usedChannels();
+    const used = tally.channelsUsed();
     lines.push(`channels used ${used.length ? formatChannels(used) : '-'}   busy ${new Set(notes.map((n) => n.channel)).size}`);
-    const st = router.stats;
-    const counts = [`steals ${router.output.counters.steals}`, `out of range ${st.outOfRange}`, `dropped notes ${st.notesDropped}`, `bad bytes ${st.malformedBytes}`, `lost messages ${this.sources.lostMessages()}`];
+    const counts = [
+      `steals ${tally.steals}`,
+      `out of range ${tally.outOfRange}`,
+      `dropped notes ${tally.notesDropped}`,
+      `garbled input bytes ${tally.malformedBytes}`,
+      `messages the synth missed ${this.sources.lostMessages()}`,
+    ];
+    if (tally.substitutions) counts.push(`played as another spelling ${tally.substitutions}`);
     lines.push(counts.join('   '));
     for (const n of this.notices) lines.push(s.yellow(`! ${n}`));
     lines.push(s.dim(`keys: p or space = PANIC, q = quit${this.lastPanic ? `   (last panic: ${this.lastPanic})` : ''}`));

@@ -1,12 +1,13 @@
 import { createWriteStream, type WriteStream } from 'node:fs';
 import { formatSpelledPitch } from '../pitch/index.js';
 import type { RouterEvent } from '../router/router.js';
-import { createRouter, type EngineOptionsInput } from '../router/setup.js';
+import { createEngine, type EngineOptionsInput } from '../router/setup.js';
+import { channelOf, keyOfNote, sourceOf } from '../router/note-id.js';
 import type { ControlledSpeller } from '../spelling/controlled.js';
 import { UserError } from '../util/errors.js';
 import { enableMidi } from '../io/midi-system.js';
-import type { CommandIo } from '../cli/io.js';
-import { makeStyle, wantsColour } from '../cli/style.js';
+import type { CommandIo } from '../util/io.js';
+import { makeStyle, wantsColour } from '../text/style.js';
 import { writeOutputFile } from '../util/files.js';
 import { Bridge } from './bridge.js';
 import { LiveView } from './display.js';
@@ -39,9 +40,20 @@ export interface Session {
   stop(reason: string): void;
 }
 
-function logLine(e: RouterEvent): string {
-  const { pitch, ...rest } = e as RouterEvent & { pitch?: Parameters<typeof formatSpelledPitch>[0] };
-  return JSON.stringify(pitch ? { ...rest, spelling: formatSpelledPitch(pitch) } : rest) + '\n';
+/** One JSON line per event: spellings as names, a note's identity as source, channel (1–16) and key. */
+export function logLine(e: RouterEvent): string {
+  const fields: Record<string, unknown> = { ...e };
+  if ('id' in e) {
+    delete fields.id;
+    Object.assign(fields, { source: sourceOf(e.id), channel: channelOf(e.id) + 1, key: keyOfNote(e.id) });
+  }
+  if ('pitch' in e) fields.pitch = formatSpelledPitch(e.pitch);
+  if (e.type === 'note') fields.wanted = e.wanted && formatSpelledPitch(e.wanted);
+  if ('pitch' in e) {
+    fields.spelling = fields.pitch;
+    delete fields.pitch;
+  }
+  return JSON.stringify(fields) + '\n';
 }
 
 const sleep = (ms: number): Promise<void> => new Promise((resolve) => setTimeout(resolve, ms));
@@ -70,7 +82,7 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
   const print = (line: string | undefined): void => {
     if (line !== undefined && lines) io.stdout.write(line + '\n');
   };
-  const router = createRouter({
+  const { router, tally } = createEngine({
     ...options.engine,
     speller: options.speller,
     observer: (e) => {
@@ -82,12 +94,12 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
   });
   view = new LiveView(
     {
-      router,
+      tally,
       speller: options.speller,
       strategy: options.strategy,
       title: options.title,
       lostMessages: () => bridge?.lostMessages ?? 0,
-      ports: () => ({ inputs: bridge?.inputsConnected ?? [], output: bridge?.outputConnected ?? false }),
+      ports: () => bridge?.portStates() ?? { inputs: options.inputs.map((name) => ({ name, connected: false })), output: { name: options.output, connected: false } },
     },
     style,
     { accidentals: options.ascii ? 'ascii' : 'unicode' },

@@ -12,11 +12,23 @@ const HIGHEST = 127 * 16384 + 16382;
 
 /** Encodes a frequency relative to the synth's 12-ET at `a4Hz` (440 unless the synth is tuned elsewhere). */
 export function encodeFrequency(hz: number, a4Hz = 440): FrequencyData {
-  const semitones = 69 + 12 * Math.log2(hz / a4Hz);
-  const units = Math.max(0, Math.min(HIGHEST, Math.round(semitones * 16384)));
+  const units = Math.max(0, Math.min(HIGHEST, frequencyUnits(hz, a4Hz)));
   const xx = Math.floor(units / 16384);
   const fraction = units % 16384;
   return [xx, fraction >> 7, fraction & 0x7f];
+}
+
+/** A frequency in MTS units (1/16384 semitone above key 0), before clamping. */
+function frequencyUnits(hz: number, a4Hz: number): number {
+  return Math.round((69 + 12 * Math.log2(hz / a4Hz)) * 16384);
+}
+
+/** Cents by which a frequency lies outside what MTS frequency data can say (0 inside: key 0 … key 127 + 16382/16384). */
+export function mtsOutOfRangeCents(hz: number, a4Hz = 440): number {
+  const units = frequencyUnits(hz, a4Hz);
+  if (units < 0) return (units / 16384) * 100;
+  if (units > HIGHEST) return ((units - HIGHEST) / 16384) * 100;
+  return 0;
 }
 
 export function decodeFrequency(data: FrequencyData, a4Hz = 440): number {

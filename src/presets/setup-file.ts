@@ -1,5 +1,5 @@
 import { parsePitchClass, parseWindow, type KeyboardWindow } from '../pitch/index.js';
-import type { Action, Binding, Trigger } from '../spelling/control-map.js';
+import { actionEntry, type Action, type ActionName, type Binding, type Trigger } from '../spelling/control-map.js';
 import type { SplitKey } from '../spelling/controlled.js';
 import { parseKey, type DeclaredKey } from '../spelling/keys.js';
 import { readTextFile } from '../util/files.js';
@@ -16,33 +16,14 @@ export interface SetupFile {
   readonly splits: readonly SplitKey[];
 }
 
-function actionOf(name: NonNullable<ControlJson['action']>, keyText: string | undefined, path: string, problems: Problem[]): Action | undefined {
-  switch (name) {
-    case 'flip':
-      return { kind: 'flip' };
-    case 'shift-sharp':
-      return { kind: 'shift', steps: 1 };
-    case 'shift-flat':
-      return { kind: 'shift', steps: -1 };
-    case 'force-sharps':
-      return { kind: 'force', to: 'sharps' };
-    case 'force-flats':
-      return { kind: 'force', to: 'flats' };
-    case 'freeze':
-      return { kind: 'freeze' };
-    case 'set-key': {
-      if (keyText === undefined) {
-        problems.push({ path, message: '"set-key" needs a "key", such as "D minor"' });
-        return undefined;
-      }
-      const key = collecting(problems, `${path}.key`, () => parseKey(keyText));
-      return key && { kind: 'set-key', key };
-    }
-    case 'respell':
-    case 'pass':
-    case 'panic':
-      return { kind: name };
+function actionOf(name: ActionName, keyText: string | undefined, path: string, problems: Problem[]): Action | undefined {
+  if (!actionEntry(name).needsKey) return { name };
+  if (keyText === undefined) {
+    problems.push({ path, message: `"${name}" needs a "key", such as "D minor"` });
+    return undefined;
   }
+  const key = collecting(problems, `${path}.key`, () => parseKey(keyText));
+  return key && { name, key };
 }
 
 function bindingsOf(controls: readonly ControlJson[], problems: Problem[]): Binding[] {

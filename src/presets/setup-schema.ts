@@ -1,9 +1,12 @@
 import { z } from 'zod';
+import { OUTPUT_MODE_IDS } from '../router/output-modes.js';
+import { ACTION_NAMES } from '../spelling/control-map.js';
+import { STRATEGIES } from '../spelling/strategy.js';
 
 const channel = z.number().int().min(1).max(16);
 const midiValue = z.number().int().min(0).max(127);
 
-const action = z.enum(['flip', 'shift-sharp', 'shift-flat', 'force-sharps', 'force-flats', 'freeze', 'set-key', 'respell', 'pass', 'panic']);
+const action = z.enum(ACTION_NAMES);
 
 const zone = z.strictObject({ from: midiValue, to: midiValue, action, key: z.string().optional(), latch: z.boolean().optional() });
 
@@ -45,7 +48,7 @@ export const setupSchema = z.strictObject({
   reference: z.string().optional(),
   spelling: z
     .strictObject({
-      strategy: z.enum(['fixed', 'key', 'follow']).optional(),
+      strategy: z.enum(STRATEGIES).optional(),
       window: z.string().optional(),
       key: z.string().optional(),
       gatherMs: z.number().min(0).max(100).optional(),
@@ -61,7 +64,7 @@ export const setupSchema = z.strictObject({
     .optional(),
   output: z
     .strictObject({
-      mode: z.enum(['bend', 'mts-note', 'mts-octave', 'pass']).optional(),
+      mode: z.enum(OUTPUT_MODE_IDS).optional(),
       layout: z.enum(['mpe', 'multi']).optional(),
       channels: z.string().optional(),
       bendRange: z.number().min(0.01).max(96).optional(),

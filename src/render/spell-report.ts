@@ -1,5 +1,6 @@
 import { chromaOf, formatPitchClass, formatSpelledPitch, nearestSpelling, pitchClass, type NameStyle, type PitchClass, type SpelledPitch } from '../pitch/index.js';
-import type { RouterEvent } from '../router/router.js';
+import type { NoteEvent } from '../router/events.js';
+import { channelOf, keyOfNote, type NoteId } from '../router/note-id.js';
 import { PURE_FIFTH_INTERVAL, PURE_MAJOR_THIRD, pureCents, type WolfLimits } from '../tuning/index.js';
 import { mod } from '../util/errors.js';
 
@@ -28,28 +29,28 @@ export interface WolfCount {
 /** Collects rows and the summary from the router's note events, tracking which notes sound together. */
 export class SpellReport {
   readonly rows: SpellRow[] = [];
-  private readonly held = new Map<number, SpellRow>();
+  private readonly held = new Map<NoteId, SpellRow>();
   private readonly wolves = new Map<string, WolfCount>();
 
   constructor(private readonly limits: WolfLimits) {}
 
-  note(event: Extract<RouterEvent, { type: 'note' }>, tick: number): void {
+  note(event: NoteEvent, tick: number): void {
     const row: SpellRow = {
       tick,
       time: event.time / 1000,
-      key: event.inKey,
-      channel: event.inChannel + 1,
+      key: keyOfNote(event.id),
+      channel: channelOf(event.id) + 1,
       pitch: event.pitch,
       hz: event.hz,
       cents: event.cents,
     };
     for (const other of this.held.values()) this.checkPair(other, row);
-    this.held.set(event.source * 2048 + event.inChannel * 128 + event.inKey, row);
+    this.held.set(event.id, row);
     this.rows.push(row);
   }
 
-  noteOff(source: number, channel: number, key: number): void {
-    this.held.delete(source * 2048 + channel * 128 + key);
+  noteOff(id: NoteId): void {
+    this.held.delete(id);
   }
 
   /** A fifth (7 keys apart, octaves aside) or major third (4) between two sounding notes, measured from the tuning. */

@@ -1,6 +1,6 @@
 import { noteOff } from '../midi/bytes.js';
-import { encodeFrequency, singleNoteTuning, type FrequencyData } from '../midi/mts.js';
-import type { Emit, OutputCounters, OutputStrategy, PlaceContext, Placement } from './output.js';
+import { encodeFrequency, mtsOutOfRangeCents, singleNoteTuning, type FrequencyData } from '../midi/mts.js';
+import type { InPlaceRetuning, OutputContext, OutputModeEntry, OutputStrategy, Placement } from './output.js';
 import type { TunedNote } from './pitch-table.js';
 import { SingleChannelOutput } from './single-channel-output.js';
 
@@ -18,6 +18,7 @@ export interface MtsNoteOutputSetup {
 interface Slot {
   /** The tuning last sent to this key, or undefined while unknown. */
   data: FrequencyData | undefined;
+  /** Voices sounding on it: keys down and voices held by a pedal. */
   sounding: number;
   lastEnd: number;
   newestStart: number;
@@ -28,20 +29,23 @@ const sameData = (a: FrequencyData | undefined, b: FrequencyData): boolean => a 
 /**
  * MIDI Tuning Standard, real-time single note tuning change, on one channel. The 128 keys are
  * tuning slots: a note goes to the slot of its nearest key, retuned first if needed; a slot is
- * retuned only when nothing sounds on it and its release guard has passed, so when G♯ and A♭ of
- * one key must sound together the second takes the nearest free slot instead.
+ * retuned only when nothing sounds on it (pedal-held notes sound) and its release guard has
+ * passed, so when G♯ and A♭ of one key must sound together the second takes the nearest free slot
+ * instead. When no slot is free, a slot within its release guard is taken (the natural one, else
+ * the nearest: only a release tail can move); only when every slot sounds is the slot whose
+ * newest note started longest ago stolen (its notes get note-offs before the retune).
  */
 export class MtsNoteOutput extends SingleChannelOutput implements OutputStrategy {
-  readonly mode = 'mts-note';
-  readonly counters: OutputCounters = { retunes: 0, steals: 0 };
+  readonly inPlace: InPlaceRetuning;
   private readonly slots: Slot[] = Array.from({ length: 128 }, () => ({ data: undefined, sounding: 0, lastEnd: -Infinity, newestStart: -Infinity }));
 
   constructor(private readonly setup: MtsNoteOutputSetup) {
-    super(setup.channel);
+    super(setup.channel, setup.wheelRange, setup.sendBendRange);
+    this.inPlace = { unitOf: (p) => p.key, retune: (p, note, context) => this.retune(p.key, encodeFrequency(note.hz, this.setup.synthA4), context) };
   }
 
-  start(emit: Emit): void {
-    this.startChannel(emit, this.setup.wheelRange, this.setup.sendBendRange);
+  start(context: OutputContext): void {
+    this.startChannel(context);
     for (const slot of this.slots) slot.data = undefined; // the synth's tuning is unknown until we send it
   }
 
@@ -49,43 +53,44 @@ export class MtsNoteOutput extends SingleChannelOutput implements OutputStrategy
     return slot.sounding === 0 && time - slot.lastEnd >= this.setup.releaseGuardMs;
   }
 
-  /** The slot to use: the natural one if tuned or free, else the nearest tuned or free one, else steal the natural one. */
-  private choose(natural: number, data: FrequencyData, time: number): { key: number; steal: boolean } {
-    const naturalSlot = this.slots[natural];
-    if (naturalSlot && (sameData(naturalSlot.data, data) || this.isFree(naturalSlot, time))) return { key: natural, steal: false };
+  /** The slot to use: the natural one if tuned or free, else the nearest tuned or free one; `cut` when it must be taken over. */
+  private choose(natural: number, data: FrequencyData, time: number): { key: number; cut: 'none' | 'tail' | 'steal' } {
+    const naturalSlot = this.slots[natural]!;
+    if (sameData(naturalSlot.data, data) || this.isFree(naturalSlot, time)) return { key: natural, cut: 'none' };
     let free: number | undefined;
+    let tail: number | undefined;
+    let oldest: number = natural;
     for (let distance = 1; distance < 128; distance++) {
       for (const key of [natural - distance, natural + distance]) {
         const slot = this.slots[key];
         if (!slot) continue;
-        if (sameData(slot.data, data)) return { key, steal: false };
+        if (sameData(slot.data, data)) return { key, cut: 'none' };
         if (free === undefined && this.isFree(slot, time)) free = key;
+        if (tail === undefined && slot.sounding === 0) tail = key;
+        if (slot.newestStart < this.slots[oldest]!.newestStart) oldest = key;
       }
-      if (free !== undefined) return { key: free, steal: false };
+      if (free !== undefined) return { key: free, cut: 'none' };
     }
-    return { key: natural, steal: true };
+    if (naturalSlot.sounding === 0) return { key: natural, cut: 'tail' };
+    if (tail !== undefined) return { key: tail, cut: 'tail' };
+    return { key: oldest, cut: 'steal' };
   }
 
-  place(note: TunedNote, time: number, context: PlaceContext): Placement | undefined {
+  place(note: TunedNote, time: number, context: OutputContext): Placement | undefined {
     if (note.nearestKey < 0 || note.nearestKey > 127) return undefined;
+    const outside = mtsOutOfRangeCents(note.hz, this.setup.synthA4);
+    if (outside !== 0) context.outOfRange(note, outside);
     const data = encodeFrequency(note.hz, this.setup.synthA4);
-    const { key, steal } = this.choose(note.nearestKey, data, time);
-    const slot = this.slots[key];
-    if (!slot) return undefined;
-    if (steal) {
+    const { key, cut } = this.choose(note.nearestKey, data, time);
+    const slot = this.slots[key]!;
+    if (cut === 'steal') {
       context.steal((p) => p.channel === this.setup.channel && p.key === key);
       context.emit(noteOff(this.setup.channel, key));
       slot.sounding = 0;
-      this.counters.steals++;
     }
-    if (!sameData(slot.data, data)) {
-      slot.data = data;
-      this.counters.retunes++;
-      context.emit(singleNoteTuning(this.setup.device, this.setup.program, [{ key, data }]));
-    }
+    this.retune(key, data, context);
     slot.sounding++;
     slot.newestStart = time;
-    this.used = true;
     return { channel: this.setup.channel, key };
   }
 
@@ -96,27 +101,41 @@ export class MtsNoteOutput extends SingleChannelOutput implements OutputStrategy
     if (slot.sounding === 0) slot.lastEnd = time;
   }
 
-  unitOf(placement: Placement): number {
-    return placement.key;
-  }
-
-  retune(placement: Placement, note: TunedNote, context: PlaceContext): boolean {
-    const slot = this.slots[placement.key];
+  /** Sends a slot's tuning if it differs (MTS tunes a slot to any frequency). */
+  private retune(key: number, data: FrequencyData, context: OutputContext): boolean {
+    const slot = this.slots[key];
     if (!slot) return false;
-    const data = encodeFrequency(note.hz, this.setup.synthA4); // MTS tunes a slot to any frequency
     if (!sameData(slot.data, data)) {
       slot.data = data;
-      this.counters.retunes++;
-      context.emit(singleNoteTuning(this.setup.device, this.setup.program, [{ key: placement.key, data }]));
+      context.retuned();
+      context.emit(singleNoteTuning(this.setup.device, this.setup.program, [{ key, data }]));
     }
     return true;
   }
 
-  override panic(emit: Emit): void {
-    super.panic(emit);
+  override panic(context: OutputContext): void {
+    super.panic(context);
     for (const slot of this.slots) {
       slot.sounding = 0;
       slot.lastEnd = -Infinity;
     }
   }
 }
+
+export const mtsNoteMode: OutputModeEntry = {
+  summary: 'MIDI Tuning Standard single-note retuning on one channel (128 tuning slots)',
+  channels: 'one',
+  defaultChannels: [0],
+  settings: ['mtsDevice', 'mtsProgram'],
+  retuneLabel: 'MTS messages',
+  create: (request) =>
+    new MtsNoteOutput({
+      channel: request.channels[0] ?? 0,
+      device: request.mtsDevice,
+      program: request.mtsProgram,
+      releaseGuardMs: request.releaseGuardMs,
+      synthA4: request.synthA4,
+      wheelRange: request.wheelRange,
+      sendBendRange: request.sendBendRange,
+    }),
+};

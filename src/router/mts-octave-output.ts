@@ -1,7 +1,7 @@
 import { quantiseScaleOctave, scaleOctaveLimits, scaleOctaveTuning, type ScaleOctaveForm } from '../midi/mts.js';
 import { chromaOf, keyOf, rangeClasses, type KeyboardWindow } from '../pitch/index.js';
 import { mod } from '../util/errors.js';
-import type { Emit, OutputCounters, OutputStrategy, PlaceContext, Placement } from './output.js';
+import type { InPlaceRetuning, OutputContext, OutputModeEntry, OutputStrategy, Placement } from './output.js';
 import type { PitchTable, TunedNote } from './pitch-table.js';
 import { SingleChannelOutput } from './single-channel-output.js';
 
@@ -22,8 +22,7 @@ export interface MtsOctaveOutputSetup {
  * start from the reference pitch.
  */
 export class MtsOctaveOutput extends SingleChannelOutput implements OutputStrategy {
-  readonly mode = 'mts-octave';
-  readonly counters: OutputCounters = { retunes: 0, steals: 0 };
+  readonly inPlace: InPlaceRetuning;
   private readonly offsets: number[] = new Array<number>(12).fill(0);
   private readonly shift: number;
 
@@ -32,60 +31,67 @@ export class MtsOctaveOutput extends SingleChannelOutput implements OutputStrate
     private readonly table: PitchTable,
     private readonly window: KeyboardWindow,
   ) {
-    super(setup.channel);
+    super(setup.channel, setup.wheelRange, setup.sendBendRange);
     const classes = rangeClasses(window);
     const mean = classes.reduce((sum, pc) => sum + table.offsetOf(pc).cents, 0) / classes.length;
     this.shift = Math.round(mean / 100);
+    this.inPlace = { unitOf: (p) => mod(p.key, 12), retune: (p, note, context) => this.retune(p, note, context) };
   }
 
-  private send(emit: Emit): void {
-    this.counters.retunes++;
-    emit(scaleOctaveTuning(this.setup.device, [this.setup.channel], this.offsets, this.setup.form));
+  private send(context: OutputContext): void {
+    context.retuned();
+    context.emit(scaleOctaveTuning(this.setup.device, [this.setup.channel], this.offsets, this.setup.form));
   }
 
-  /** Offset the key class `chroma` needs for a pitch class with `cents` from its own key. */
+  /** Offset the key class needs for a pitch class with `cents` from its own key. */
   private fit(cents: number): { value: number; clamped: boolean } {
     const wanted = cents - 100 * this.shift;
     const { lowest, highest } = scaleOctaveLimits(this.setup.form);
     return { value: quantiseScaleOctave(Math.max(lowest, Math.min(highest, wanted)), this.setup.form), clamped: wanted < lowest || wanted > highest };
   }
 
-  start(emit: Emit): void {
-    this.startChannel(emit, this.setup.wheelRange, this.setup.sendBendRange);
+  start(context: OutputContext): void {
+    this.startChannel(context);
     for (const pc of rangeClasses(this.window)) this.offsets[mod(chromaOf(pc) + this.shift, 12)] = this.fit(this.table.offsetOf(pc).cents).value;
-    this.send(emit);
+    this.send(context);
   }
 
-  place(note: TunedNote, _time: number, context: PlaceContext): Placement | undefined {
+  place(note: TunedNote, _time: number, context: OutputContext): Placement | undefined {
     const key = keyOf(note.pitch) + this.shift;
     if (key < 0 || key > 127) return undefined;
     const { value, clamped } = this.fit(note.offset.cents);
     if (clamped) context.outOfRange(note, note.offset.cents - 100 * this.shift);
-    const slot = mod(key, 12);
-    if (this.offsets[slot] !== value) {
-      this.offsets[slot] = value;
-      this.send(context.emit);
-    }
-    this.used = true;
+    this.setOffset(mod(key, 12), value, context);
     return { channel: this.setup.channel, key };
+  }
+
+  private setOffset(keyClass: number, value: number, context: OutputContext): void {
+    if (this.offsets[keyClass] === value) return;
+    this.offsets[keyClass] = value;
+    this.send(context);
   }
 
   voiceEnded(): void {}
 
-  unitOf(placement: Placement): number {
-    return mod(placement.key, 12);
-  }
-
-  retune(placement: Placement, note: TunedNote, context: PlaceContext): boolean {
+  private retune(placement: Placement, note: TunedNote, context: OutputContext): boolean {
     if (placement.key !== keyOf(note.pitch) + this.shift) return false;
     const { value, clamped } = this.fit(note.offset.cents);
     if (clamped) return false;
-    const slot = mod(placement.key, 12);
-    if (this.offsets[slot] !== value) {
-      this.offsets[slot] = value;
-      this.send(context.emit);
-    }
+    this.setOffset(mod(placement.key, 12), value, context);
     return true;
   }
-
 }
+
+export const mtsOctaveMode: OutputModeEntry = {
+  summary: 'MIDI Tuning Standard scale/octave tuning on one channel (12 key classes)',
+  channels: 'one',
+  defaultChannels: [0],
+  settings: ['mtsDevice', 'octaveForm'],
+  retuneLabel: 'MTS messages',
+  create: (request, table) =>
+    new MtsOctaveOutput(
+      { channel: request.channels[0] ?? 0, device: request.mtsDevice, form: request.octaveForm, wheelRange: request.wheelRange, sendBendRange: request.sendBendRange },
+      table,
+      request.window,
+    ),
+};

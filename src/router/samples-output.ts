@@ -1,18 +1,19 @@
-import { chromaOf, keyOf } from '../pitch/index.js';
-import type { Emit, OutputCounters, OutputStrategy, Placement } from './output.js';
+import { pitchBend } from '../midi/bytes.js';
+import { BEND_CENTRE } from '../midi/pitch-bend.js';
+import { chromaOf, keyOf, onKey, pitchClass, type SpelledPitch } from '../pitch/index.js';
+import { UserError } from '../util/errors.js';
+import type { OutputContext, OutputModeEntry, OutputStrategy, Placement } from './output.js';
 import type { TunedNote } from './pitch-table.js';
 
 /**
  * A retuned sample set: every spelled pitch class has its own channel, where each key holds a
  * sample already at that spelling's frequency. A note goes to its spelling's channel at its own
- * key, with no bend; a spelling the set lacks takes the set's other spelling of the same key.
+ * key, with no bend; a spelling the set lacks is played (and reported) as the set's nearest
+ * spelling of the same key on the line of fifths.
  */
 export class SamplesOutput implements OutputStrategy {
-  readonly mode = 'samples';
-  readonly counters: OutputCounters = { retunes: 0, steals: 0 };
   readonly zoneChannels: readonly number[];
   readonly allChannels: readonly number[];
-  private readonly used = new Set<number>();
 
   /** `layout`: line-of-fifths position of each spelling → its channel (0…15). */
   constructor(private readonly layout: ReadonlyMap<number, number>) {
@@ -22,39 +23,41 @@ export class SamplesOutput implements OutputStrategy {
 
   start(): void {}
 
-  place(note: TunedNote): Placement | undefined {
-    let channel = this.layout.get(note.pitch.fifths);
-    if (channel === undefined) {
-      const chroma = chromaOf(note.pitch);
-      const other = [...this.layout.keys()].filter((f) => chromaOf({ fifths: f }) === chroma).sort((a, b) => Math.abs(a - note.pitch.fifths) - Math.abs(b - note.pitch.fifths))[0];
-      channel = other === undefined ? undefined : this.layout.get(other);
+  available(pitch: SpelledPitch): SpelledPitch {
+    if (this.layout.has(pitch.fifths)) return pitch;
+    const chroma = chromaOf(pitch);
+    let best: number | undefined;
+    for (const f of this.layout.keys()) {
+      if (chromaOf(pitchClass(f)) !== chroma) continue;
+      if (best === undefined || Math.abs(f - pitch.fifths) < Math.abs(best - pitch.fifths)) best = f;
     }
-    if (channel === undefined) return undefined;
-    this.used.add(channel);
-    return { channel, key: keyOf(note.pitch) };
+    return best === undefined ? pitch : onKey(pitchClass(best), keyOf(pitch));
+  }
+
+  place(note: TunedNote): Placement | undefined {
+    const channel = this.layout.get(note.pitch.fifths);
+    return channel === undefined ? undefined : { channel, key: keyOf(note.pitch) };
   }
 
   voiceEnded(): void {}
 
-  unitOf(): number {
-    return -1;
+  wheel(value: number, _range: number, _time: number, context: OutputContext): void {
+    for (const c of this.zoneChannels) context.emit(pitchBend(c, value));
   }
 
-  retune(): boolean {
-    return false;
-  }
-
-  wheel(value: number, _range: number, _time: number, emit: Emit): void {
-    for (const c of this.zoneChannels) emit([0xe0 | c, value & 0x7f, value >> 7]);
-  }
-
-  reassert(): void {}
-
-  panic(emit: Emit): void {
-    for (const c of this.zoneChannels) emit([0xe0 | c, 0, 64]);
-  }
-
-  usedChannels(): number[] {
-    return [...this.used];
+  panic(context: OutputContext): void {
+    for (const c of this.zoneChannels) context.emit(pitchBend(c, BEND_CENTRE));
   }
 }
+
+export const samplesMode: OutputModeEntry = {
+  summary: 'a retuned sample set made by "diesis samples": a channel per spelling, no bends',
+  channels: 'set',
+  defaultChannels: [],
+  settings: ['sampleSet'],
+  retuneLabel: 'tuning messages',
+  create(request) {
+    if (!request.sampleLayout) throw new UserError('--mode samples needs a sample set: give --sample-set DIR (made by "diesis samples")', 2);
+    return new SamplesOutput(request.sampleLayout);
+  },
+};

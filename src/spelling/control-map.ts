@@ -1,16 +1,67 @@
-import type { DeclaredKey } from './keys.js';
+import type { MidiMessage } from '../midi/message.js';
 import type { ControlledSpeller } from './controlled.js';
+import type { DeclaredKey } from './keys.js';
 
-/** What a control can do. */
-export type Action =
-  | { readonly kind: 'flip' }
-  | { readonly kind: 'shift'; readonly steps: 1 | -1 }
-  | { readonly kind: 'force'; readonly to: 'sharps' | 'flats' }
-  | { readonly kind: 'freeze' }
-  | { readonly kind: 'set-key'; readonly key: DeclaredKey }
-  | { readonly kind: 'respell' }
-  | { readonly kind: 'pass' }
-  | { readonly kind: 'panic' };
+/** What the engine itself carries out for a control (the router implements these). */
+export interface EngineActions {
+  /** Respells what sounds now with the context as it is. */
+  respell(): void;
+  /** New notes in 12-ET at the reference, or back. */
+  togglePass(): void;
+  panic(): void;
+}
+
+/** What an action acts on. */
+export interface ActionTarget {
+  readonly speller: ControlledSpeller;
+  readonly engine: EngineActions;
+}
+
+/** One control action, declared once: the setup schema, `check`, the docs and the engine read it. */
+export interface ActionEntry {
+  readonly summary: string;
+  /** `hold`: follows the pedal (or a latch toggles it); `press`: fires once on each press. */
+  readonly kind: 'hold' | 'press';
+  /** Needs a key (`set-key`). */
+  readonly needsKey?: boolean;
+  /** `on`: for a hold action whether it is on now; a press action runs only on presses. */
+  run(target: ActionTarget, on: boolean, key: DeclaredKey | undefined): void;
+}
+
+/**
+ * Every control action. A new action is one entry here (and, if it acts on something new, a
+ * method on the speller or on `EngineActions`).
+ */
+export const ACTIONS = {
+  flip: { summary: 'black keys take their other spelling while held', kind: 'hold', run: (t, on) => t.speller.setFlip(on) },
+  'shift-sharp': { summary: 'move the spelling window one step sharpward', kind: 'press', run: (t) => t.speller.shiftBy(1) },
+  'shift-flat': { summary: 'move the spelling window one step flatward', kind: 'press', run: (t) => t.speller.shiftBy(-1) },
+  'force-sharps': { summary: 'every black key a sharp while held', kind: 'hold', run: (t, on) => forceTo(t.speller, 'sharps', on) },
+  'force-flats': { summary: 'every black key a flat while held', kind: 'hold', run: (t, on) => forceTo(t.speller, 'flats', on) },
+  freeze: { summary: 'hold the spelling context still while held', kind: 'hold', run: (t, on) => t.speller.setFrozen(on) },
+  'set-key': { summary: 'jump to a declared key', kind: 'press', needsKey: true, run: (t, _on, key) => key && t.speller.setKey(key) },
+  respell: { summary: 'respell the notes sounding now', kind: 'press', run: (t) => t.engine.respell() },
+  pass: { summary: "toggle the synth's own 12-ET for comparison", kind: 'press', run: (t) => t.engine.togglePass() },
+  panic: { summary: 'all notes off, pedals up, bends centred', kind: 'press', run: (t) => t.engine.panic() },
+} as const satisfies Record<string, ActionEntry>;
+
+export type ActionName = keyof typeof ACTIONS;
+export const ACTION_NAMES = Object.keys(ACTIONS) as [ActionName, ...ActionName[]];
+
+export function actionEntry(name: ActionName): ActionEntry {
+  return ACTIONS[name];
+}
+
+function forceTo(speller: ControlledSpeller, to: 'sharps' | 'flats', on: boolean): void {
+  const now = speller.overrides.force;
+  speller.setForce(on ? to : now === to ? undefined : now);
+}
+
+/** An action as bound: its name and, for `set-key`, the key. */
+export interface Action {
+  readonly name: ActionName;
+  readonly key?: DeclaredKey | undefined;
+}
 
 /** What fires a control: a switch pedal, a zone of an expression pedal, a key switch, a program change. */
 export type Trigger =
@@ -22,40 +73,31 @@ export type Trigger =
 export interface Binding {
   readonly trigger: Trigger;
   readonly action: Action;
-  /** Flip, force and freeze hold while pressed, or with `latch` toggle on each press. */
+  /** Hold actions follow the pedal, or with `latch` toggle on each press. */
   readonly latch: boolean;
 }
 
-/** Actions the router itself carries out. */
-export type RouterAction = 'respell' | 'pass' | 'panic';
-
-export interface ControlOutcome {
-  readonly routerActions: readonly RouterAction[];
+/** One binding's change: run its action; `on` says whether a hold action is on now (a press action fires with true). */
+export interface Firing {
+  readonly action: Action;
+  readonly on: boolean;
 }
 
-/** The effect a control's press or release has: the speller's state, or router actions. */
-function apply(binding: Binding, pressed: boolean, on: boolean, speller: ControlledSpeller, actions: RouterAction[]): void {
-  const { action } = binding;
-  switch (action.kind) {
-    case 'flip':
-      speller.flip = on;
-      return;
-    case 'force':
-      speller.force = on ? action.to : speller.force === action.to ? undefined : speller.force;
-      return;
-    case 'freeze':
-      speller.setFrozen(on);
-      return;
-    case 'shift':
-      if (pressed) speller.shift += action.steps;
-      return;
-    case 'set-key':
-      if (pressed) speller.setKey(action.key);
-      return;
-    case 'respell':
-    case 'pass':
-    case 'panic':
-      if (pressed) actions.push(action.kind);
+/** Whether a message presses (true) or releases (false) a trigger; undefined when it is not the trigger's. */
+function pressOf(t: Trigger, m: MidiMessage, source: number): boolean | undefined {
+  if (m.kind === 'system' || m.kind === 'active-sensing') return undefined;
+  if (t.channel !== undefined && t.channel !== m.channel) return undefined;
+  switch (t.kind) {
+    case 'cc':
+      return m.kind === 'control' && m.controller === t.controller ? m.value >= t.threshold : undefined;
+    case 'zone':
+      return m.kind === 'control' && m.controller === t.controller ? m.value >= t.from && m.value <= t.to : undefined;
+    case 'note':
+      if ((m.kind !== 'note-on' && m.kind !== 'note-off') || m.key !== t.key) return undefined;
+      if (t.source !== undefined && t.source !== source) return undefined;
+      return m.kind === 'note-on';
+    case 'program':
+      return m.kind === 'program' && m.program === t.program ? true : undefined;
   }
 }
 
@@ -76,37 +118,36 @@ export class ControlMap {
     this.latched = bindings.map(() => false);
   }
 
-  /** Offers a message to the controls; undefined when no binding uses it. */
-  intercept(message: readonly number[], source: number): ControlOutcome | undefined {
-    const status = message[0] ?? 0;
-    if (status >= 0xf0) return undefined;
-    const kind = status & 0xf0;
-    const channel = status & 0x0f;
-    const a = message[1] ?? 0;
-    const b = message[2] ?? 0;
-    const routerActions: RouterAction[] = [];
-    let used = false;
-    this.bindings.forEach((binding, i) => {
-      const t = binding.trigger;
-      if (t.channel !== undefined && t.channel !== channel) return;
-      let pressed: boolean | undefined;
-      if (t.kind === 'cc' && kind === 0xb0 && a === t.controller) pressed = b >= t.threshold;
-      else if (t.kind === 'zone' && kind === 0xb0 && a === t.controller) pressed = b >= t.from && b <= t.to;
-      else if (t.kind === 'note' && (kind === 0x90 || kind === 0x80) && a === t.key && (t.source === undefined || t.source === source)) pressed = kind === 0x90 && b > 0;
-      else if (t.kind === 'program' && kind === 0xc0 && a === t.program) {
-        used = true;
+  /** Offers a message to the controls: undefined when no binding uses it, else what it fires (maybe nothing). */
+  intercept(message: MidiMessage, source: number): Firing[] | undefined {
+    let firings: Firing[] | undefined;
+    for (let i = 0; i < this.bindings.length; i++) {
+      const binding = this.bindings[i]!;
+      const pressed = pressOf(binding.trigger, message, source);
+      if (pressed === undefined) continue;
+      firings ??= [];
+      const hold = actionEntry(binding.action.name).kind === 'hold';
+      if (binding.trigger.kind === 'program') {
         this.latched[i] = !this.latched[i]; // a program change has no release: it always toggles
-        apply(binding, true, this.latched[i]!, this.speller, routerActions);
-        return;
-      } else return;
-      used = true;
-      if (pressed === this.pressed[i]) return;
+        firings.push({ action: binding.action, on: hold ? this.latched[i]! : true });
+        continue;
+      }
+      if (pressed === this.pressed[i]) continue;
       this.pressed[i] = pressed;
-      if (binding.latch && pressed) this.latched[i] = !this.latched[i];
-      const on = binding.latch ? this.latched[i]! : pressed;
-      if (binding.latch && !pressed) return; // a latched control changes only on presses
-      apply(binding, pressed, on, this.speller, routerActions);
-    });
-    return used ? { routerActions } : undefined;
+      if (!pressed && (binding.latch || !hold)) continue; // latches and press actions change only on presses
+      if (binding.latch) this.latched[i] = !this.latched[i];
+      firings.push({ action: binding.action, on: hold && binding.latch ? this.latched[i]! : pressed });
+    }
+    return firings;
   }
+
+  /** Carries out what `intercept` returned. */
+  run(firings: readonly Firing[], engine: EngineActions): void {
+    for (const f of firings) fire(f, { speller: this.speller, engine });
+  }
+}
+
+/** Runs one firing (a page button or a programme step fires the same way). */
+export function fire(firing: Firing, target: ActionTarget): void {
+  actionEntry(firing.action.name).run(target, firing.on, firing.action.key);
 }

@@ -28,10 +28,10 @@ const FLATS_WINDOW = keyboardWindow(-6);
  * second manual or extra keys the alternates. The strategy still hears every note.
  */
 export class ControlledSpeller implements Speller {
-  flip = false;
-  shift = 0;
-  force: Force = undefined;
-  frozen = false;
+  private flipped = false;
+  private shifted = 0;
+  private forced: Force = undefined;
+  private isFrozen = false;
 
   constructor(
     readonly base: Speller,
@@ -52,8 +52,8 @@ export class ControlledSpeller implements Speller {
   private adjust(note: NoteContext, pitch: SpelledPitch): SpelledPitch {
     const chroma = mod(note.key, 12);
     const window = this.currentWindow();
-    let pc: PitchClass = this.force !== undefined || this.shift !== 0 ? spellChroma(window, chroma) : pitch;
-    if (this.flip && BLACK.has(chroma)) {
+    let pc: PitchClass = this.forced !== undefined || this.shifted !== 0 ? spellChroma(window, chroma) : pitch;
+    if (this.flipped && BLACK.has(chroma)) {
       const middle = window.lowest + 5.5;
       pc = { fifths: pc.fifths > middle ? pc.fifths - 12 : pc.fifths + 12 };
     }
@@ -74,22 +74,49 @@ export class ControlledSpeller implements Speller {
   }
 
   currentWindow(): KeyboardWindow {
-    if (this.force === 'sharps') return SHARPS_WINDOW;
-    if (this.force === 'flats') return FLATS_WINDOW;
-    return keyboardWindow(this.base.currentWindow().lowest + this.shift);
+    if (this.forced === 'sharps') return SHARPS_WINDOW;
+    if (this.forced === 'flats') return FLATS_WINDOW;
+    return keyboardWindow(this.base.currentWindow().lowest + this.shifted);
   }
 
   currentTonic(): PitchClass | undefined {
     return this.base.currentTonic();
   }
 
-  setKey(key: DeclaredKey): void {
-    this.shift = 0;
-    this.base.setKey(key);
+  /** The player's overrides now, for displays. */
+  get overrides(): SpellerOverrides {
+    return { flip: this.flipped, shift: this.shifted, force: this.forced, frozen: this.isFrozen };
+  }
+
+  /** Black keys take their other spelling while on. */
+  setFlip(on: boolean): void {
+    this.flipped = on;
+  }
+
+  /** Moves the window along the line of fifths (+1: one spelling sharper). */
+  shiftBy(steps: number): void {
+    this.shifted += steps;
+  }
+
+  /** Every black key a sharp, or a flat, or undefined for the strategy's own choice. */
+  setForce(force: Force): void {
+    this.forced = force;
   }
 
   setFrozen(frozen: boolean): void {
-    this.frozen = frozen;
-    this.base.setFrozen(frozen);
+    this.isFrozen = frozen;
+    this.base.setFrozen?.(frozen);
   }
+
+  setKey(key: DeclaredKey): void {
+    this.shifted = 0;
+    this.base.setKey?.(key);
+  }
+}
+
+export interface SpellerOverrides {
+  readonly flip: boolean;
+  readonly shift: number;
+  readonly force: Force;
+  readonly frozen: boolean;
 }

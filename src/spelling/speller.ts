@@ -25,10 +25,10 @@ export interface Speller {
   currentWindow(): KeyboardWindow;
   /** The tonic of the context, for tunings built on one (just intonation); undefined: the tuning's own. */
   currentTonic(): PitchClass | undefined;
-  /** Jumps to a declared key (a control action). */
-  setKey(key: DeclaredKey): void;
-  /** While frozen the context holds still: nothing heard moves it. */
-  setFrozen(frozen: boolean): void;
+  /** Optional: jumps to a declared key (a control action). */
+  setKey?(key: DeclaredKey): void;
+  /** Optional: while frozen the context holds still, nothing heard moves it (a strategy with no context has nothing to freeze). */
+  setFrozen?(frozen: boolean): void;
 }
 
 /**
@@ -71,8 +71,6 @@ export class WindowSpeller implements Speller {
     this.window = keyWindow(key);
     this.tonic = key.tonic;
   }
-
-  setFrozen(): void {}
 }
 
 export function fixedSpeller(window: KeyboardWindow = DEFAULT_WINDOW): Speller {

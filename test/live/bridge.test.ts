@@ -41,7 +41,7 @@ async function stage(options: { flipCc?: number; multi?: boolean; recordFile?: s
     if (v) onset.push({ key: v.key, channel: v.channel, hz: synth.frequency(v) });
   });
   const speller = new ControlledSpeller(createStrategy({ strategy: 'fixed' }));
-  const controls = options.flipCc ? new ControlMap([{ trigger: { kind: 'cc', controller: options.flipCc, channel: undefined, threshold: 64 }, action: { kind: 'flip' }, latch: false }], speller) : undefined;
+  const controls = options.flipCc ? new ControlMap([{ trigger: { kind: 'cc', controller: options.flipCc, channel: undefined, threshold: 64 }, action: { name: 'flip' }, latch: false }], speller) : undefined;
   const session: Session = await startSession(
     {
       inputs: [keyboard.name, pedals.name],

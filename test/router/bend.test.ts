@@ -105,7 +105,7 @@ describe('bend output: tuning and channel sharing', () => {
     expect(rig.model.frequency(rig.voice(69))).toBeCloseTo(440, 2);
     const narrow = new Rig({ ...multi, bendRange: 0.1 }); // ±10 cents cannot reach meantone's −24 on B♭
     narrow.on(70);
-    expect(narrow.router.stats.outOfRange).toBe(1);
+    expect(narrow.tally.outOfRange).toBe(1);
     expect(narrow.events.some((e) => e.type === 'out-of-range')).toBe(true);
   });
 });
@@ -118,20 +118,20 @@ describe('bend output: the release guard and stealing', () => {
     rig.on(60).on(61);
     rig.off(60).after(100).off(61);
     rig.after(100).on(62); // C's channel is still in its guard: D must wait for… none is free: steal
-    expect(rig.router.output.counters.steals).toBe(1);
+    expect(rig.tally.steals).toBe(1);
     expect(rig.worstError()).toBeLessThan(AT_2);
     const rig2 = new Rig({ ...multi, channels: [1, 2], releaseGuardMs: 400, speller: speller(three) }, three);
     rig2.on(60).off(60).after(401).on(62);
     expect(rig2.voice(62).channel).toBe(2); // least recently used: channel 3 (index 2) never used
     rig2.off(62).after(401).on(63);
     expect(rig2.voice(63).channel).toBe(1); // channel 2 (index 1) was used longest ago
-    expect(rig2.router.output.counters.steals).toBe(0);
+    expect(rig2.tally.steals).toBe(0);
   });
 
   it('steals the channel whose newest note started longest ago, ending its notes cleanly', () => {
     const rig = new Rig({ ...multi, channels: [1, 2], speller: speller(three) }, three);
     rig.on(60).after(10).on(61).after(10).on(62);
-    expect(rig.router.output.counters.steals).toBe(1);
+    expect(rig.tally.steals).toBe(1);
     expect(rig.events.filter((e) => e.type === 'steal')).toHaveLength(1);
     // C (the oldest) was ended: the model no longer has it; C♯ and D sound, in tune.
     expect(rig.model.sounding().map((v) => v.key).sort()).toEqual([61, 62]);
@@ -156,7 +156,7 @@ describe('bend output: pedals', () => {
     expect(rig.voice(61).channel).not.toBe(rig.voice(60).channel);
     expect(rig.worstError()).toBeLessThan(AT_2);
     rig.after(10).on(62); // a third spelling: only by stealing, and C (oldest) is the one
-    expect(rig.router.output.counters.steals).toBe(1);
+    expect(rig.tally.steals).toBe(1);
     expect(rig.model.active().map((v) => v.key).sort()).toEqual([61, 62]);
     rig.cc(64, 0).off(61).off(62);
     expect(rig.model.active()).toHaveLength(0);
@@ -295,8 +295,13 @@ describe('panic', () => {
       expect(sent).toContainEqual([0xb0 | c, 64, 0]);
       expect(sent).toContainEqual([0xb0 | c, 66, 0]);
       expect(sent).toContainEqual([0xb0 | c, 123, 0]);
-      expect(sent).toContainEqual([0xe0 | c, 0, 64]);
     }
+    const used = rig.tally.channelsUsed();
+    expect(used).toHaveLength(3); // C, C♯ and G♯ each need a bend of their own
+    for (const c of used) expect(sent).toContainEqual([0xe0 | c, 0, 64]);
+    // Every channel whose bend was ever sent is centred; none other is touched.
+    const bent = new Set(rig.sent.slice(0, before).filter((m) => (m.data[0]! & 0xf0) === 0xe0).map((m) => m.data[0]! & 0x0f));
+    expect(new Set(sent.filter((d) => (d[0]! & 0xf0) === 0xe0).map((d) => d[0]! & 0x0f))).toEqual(bent);
     expect(rig.router.soundingCount).toBe(0);
     // Notes still work after a panic (once the old release tails have died away).
     rig.wheelCents = 0;

@@ -1,6 +1,7 @@
 import type { TimedMessage } from '../../src/midi/bytes.js';
 import { DEFAULT_WINDOW, spellKey, type SpelledPitch } from '../../src/pitch/index.js';
-import { createRouter, resolveEngineOptions, type EngineOptionsInput } from '../../src/router/setup.js';
+import { createEngine, resolveEngineOptions, type EngineOptionsInput } from '../../src/router/setup.js';
+import type { Tally } from '../../src/router/tally.js';
 import type { Router, RouterEvent } from '../../src/router/router.js';
 import { frequency } from '../../src/tuning/index.js';
 import { malformation, SynthModel, type ModelVoice } from '../../src/synth/reference-synth.js';
@@ -19,6 +20,8 @@ export interface VoiceTag {
  */
 export class Rig {
   readonly router: Router;
+  /** The engine's counts, folded from its events. */
+  readonly tally: Tally;
   readonly model: SynthModel;
   readonly events: RouterEvent[] = [];
   readonly sent: TimedMessage[] = [];
@@ -32,8 +35,10 @@ export class Rig {
     private readonly spell: (key: number) => SpelledPitch = (key) => spellKey(input.window ?? DEFAULT_WINDOW, key),
     model?: SynthModel,
   ) {
-    this.options = resolveEngineOptions({ ...input, observer: (e) => this.events.push(e) });
-    this.router = createRouter(this.options);
+    this.options = resolveEngineOptions(input);
+    const engine = createEngine({ ...input, observer: (e) => this.events.push(e) });
+    this.router = engine.router;
+    this.tally = engine.tally;
     this.model = model ?? new SynthModel(this.options.synthA4, this.options.releaseGuardMs);
     this.deliver(this.router.start(0));
   }

@@ -9,7 +9,5 @@ export function scriptedSpeller(choose: (note: NoteContext) => SpelledPitch): Sp
     noteOff: () => undefined,
     currentWindow: () => DEFAULT_WINDOW,
     currentTonic: () => undefined,
-    setKey: () => undefined,
-    setFrozen: () => undefined,
   };
 }

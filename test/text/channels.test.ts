@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { formatChannels, mpeMaster, parseChannels } from '../../src/router/setup.js';
+import { mpeMaster } from '../../src/router/bend-output.js';
+import { formatChannels, parseChannels } from '../../src/text/channels.js';
 
 describe('channel lists', () => {
   it('parses channels as a synth shows them (1–16) into 0–15', () => {

@@ -1,0 +1,50 @@
+import type { NoteId } from './note-id.js';
+
+/**
+ * How note-ons are gathered into chords before spelling: a number of milliseconds to wait for the
+ * rest of a chord (0: each note at once), or `'same-time'` for files, where a chord's notes share
+ * one timestamp.
+ */
+export type GatherSetting = number | 'same-time';
+
+export interface PendingNote {
+  readonly id: NoteId;
+  readonly velocity: number;
+}
+
+/** Collects the note-ons of one chord: the first note opens it; it closes when its time is up. */
+export class ChordGatherer {
+  private pending: PendingNote[] = [];
+  private since = 0;
+
+  constructor(private readonly setting: GatherSetting) {}
+
+  get empty(): boolean {
+    return this.pending.length === 0;
+  }
+
+  /** When the open chord must be sounded at the latest (live), or undefined. */
+  dueAt(): number | undefined {
+    return this.pending.length === 0 || this.setting === 'same-time' ? undefined : this.since + this.setting;
+  }
+
+  /** True when a note-on at `now` belongs to a new chord, so the open one must be sounded first. */
+  closesAt(now: number): boolean {
+    if (this.pending.length === 0) return false;
+    return this.setting === 'same-time' ? now !== this.since : now - this.since > this.setting;
+  }
+
+  /** Adds a note-on; returns true when the chord is complete at once (no gathering). */
+  add(now: number, note: PendingNote): boolean {
+    if (this.pending.length === 0) this.since = now;
+    this.pending.push(note);
+    return this.setting === 0;
+  }
+
+  /** Takes the open chord's notes, leaving it empty. */
+  take(): PendingNote[] {
+    const notes = this.pending;
+    this.pending = [];
+    return notes;
+  }
+}
