@@ -77,11 +77,11 @@ export class MtsNoteOutput extends SingleChannelOutput implements OutputStrategy
   }
 
   place(note: TunedNote, time: number, context: OutputContext): Placement | undefined {
-    if (note.nearestKey < 0 || note.nearestKey > 127) return undefined;
+    // Any slot can take any frequency MTS can say; beyond that the nearest it can say is sounded and counted.
     const outside = mtsOutOfRangeCents(note.hz, this.setup.synthA4);
     if (outside !== 0) context.outOfRange(note, outside);
     const data = encodeFrequency(note.hz, this.setup.synthA4);
-    const { key, cut } = this.choose(note.nearestKey, data, time);
+    const { key, cut } = this.choose(Math.max(0, Math.min(127, note.nearestKey)), data, time);
     const slot = this.slots[key]!;
     if (cut === 'steal') {
       context.steal((p) => p.channel === this.setup.channel && p.key === key);

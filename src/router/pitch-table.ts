@@ -28,13 +28,20 @@ export interface TunedNote {
  */
 export class PitchTable {
   private readonly cache = new Map<number, ClassOffset>();
+  /** Tuned notes by spelled pitch (`fifths · 1024 + octave`), so the hot path allocates nothing. */
+  private readonly notes = new Map<number, TunedNote>();
+  private readonly referenceHz: number;
+  private readonly referenceKey: number;
 
   constructor(
     readonly tuning: Tuning,
     readonly reference: Reference,
     /** The synth's own A4 in Hz (440 unless the synth is tuned elsewhere). */
     readonly synthA4: number,
-  ) {}
+  ) {
+    this.referenceHz = reference.hz.valueOf();
+    this.referenceKey = keyOf(reference.pitch);
+  }
 
   offsetOf(pc: PitchClass): ClassOffset {
     let offset = this.cache.get(pc.fifths);
@@ -50,10 +57,16 @@ export class PitchTable {
   }
 
   tune(pitch: SpelledPitch): TunedNote {
-    const offset = this.offsetOf(pitch);
-    const key = keyOf(pitch);
-    const hz = this.synthA4 * 2 ** ((key - 69 + offset.cents / 100) / 12);
-    const et = this.reference.hz.valueOf() * 2 ** ((key - keyOf(this.reference.pitch)) / 12);
-    return { pitch, hz, nearestKey: key + offset.keyShift, offset, etCents: 1200 * Math.log2(hz / et) };
+    const id = pitch.fifths * 1024 + pitch.octave;
+    let note = this.notes.get(id);
+    if (note === undefined) {
+      const offset = this.offsetOf(pitch);
+      const key = keyOf(pitch);
+      const hz = this.synthA4 * 2 ** ((key - 69 + offset.cents / 100) / 12);
+      const et = this.referenceHz * 2 ** ((key - this.referenceKey) / 12);
+      note = { pitch, hz, nearestKey: key + offset.keyShift, offset, etCents: 1200 * Math.log2(hz / et) };
+      if (this.notes.size < 65_536) this.notes.set(id, note);
+    }
+    return note;
   }
 }

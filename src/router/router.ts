@@ -201,8 +201,18 @@ export class Router {
     const keys = this.book.keysDown().filter((id) => sourceOf(id) === source);
     const changed = this.book.removeSource(source);
     for (const id of keys) this.heardKeyUp(id, 0);
-    if (changed.sustain) this.toZone(CC.sustain, 0);
-    if (changed.sostenuto) this.toZone(CC.sostenuto, 0);
+    if (changed.heldElsewhere) {
+      // Another device's pedal holds some of its notes in the synth, where only lifting the pedal
+      // ends them: lift it, end every pedal-held voice, and put the pedals that are down back.
+      this.toZone(CC.sustain, 0);
+      this.toZone(CC.sostenuto, 0);
+      this.book.endPedalHeld('source-gone');
+      if (this.book.sustainDown) this.toZone(CC.sustain, 127);
+      if (this.book.sostenutoDown) this.toZone(CC.sostenuto, 127);
+    } else {
+      if (changed.sustain) this.toZone(CC.sustain, 0);
+      if (changed.sostenuto) this.toZone(CC.sostenuto, 0);
+    }
     return this.done();
   }
 
@@ -286,6 +296,7 @@ export class Router {
   /** The pitch table for new notes: 12-ET while passing; a just table moved to the speller's tonic. */
   private tableNow(): PitchTable {
     const base = this.setup.table;
+    if (!this.passThrough && base.tuning.kind !== 'just') return base;
     const tonic = this.setup.speller.currentTonic();
     const tuning = this.passThrough ? EQUAL_TEMPERAMENT : base.tuning.kind === 'just' && tonic ? base.tuning.withTonic(tonic) : base.tuning;
     if (tuning === base.tuning) return base;

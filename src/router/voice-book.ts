@@ -158,20 +158,30 @@ export class VoiceBook {
 
   /**
    * A source went away: its pedals are lifted, and every voice it started ends at once, keys down
-   * or held by any pedal. Returns which pedals' combined state changed.
+   * or held by any pedal. Returns which pedals' combined state changed, and whether another
+   * device's pedal still holds one of those voices in the synth (a note-off cannot end it there).
    */
-  removeSource(source: number): { sustain: boolean; sostenuto: boolean } {
+  removeSource(source: number): { sustain: boolean; sostenuto: boolean; heldElsewhere: boolean } {
     for (const [id, voice] of this.keys) {
       if (sourceOf(id) !== source) continue;
       this.keys.delete(id);
       this.silence(voice, 0);
     }
-    for (const voice of this.voices()) {
-      if (sourceOf(voice.id) !== source) continue;
-      this.silence(voice, 0);
+    const gone = this.voices().filter((v) => sourceOf(v.id) === source);
+    const sustain = this.sustain(source, false);
+    const sostenuto = this.sostenuto(source, false);
+    let heldElsewhere = false;
+    for (const voice of gone) {
+      if (voice.state === 'ended') continue;
+      heldElsewhere ||= this.heldByPedal(voice);
       this.end(voice, 'source-gone');
     }
-    return { sustain: this.sustain(source, false), sostenuto: this.sostenuto(source, false) };
+    return { sustain, sostenuto, heldElsewhere };
+  }
+
+  /** Ends every voice a pedal holds (the synth's pedals are about to be lifted). */
+  endPedalHeld(cause: EndCause): void {
+    for (const voice of this.voices()) if (voice.state === 'pedal') this.end(voice, cause);
   }
 
   /** Lets go of every key and lifts every pedal (the end of a file): release tails ring on in the synth. */

@@ -50,6 +50,7 @@ export class ControlledSpeller implements Speller {
   }
 
   private adjust(note: NoteContext, pitch: SpelledPitch): SpelledPitch {
+    if (!this.flipped && this.forced === undefined && this.shifted === 0) return pitch;
     const chroma = mod(note.key, 12);
     const window = this.currentWindow();
     let pc: PitchClass = this.forced !== undefined || this.shifted !== 0 ? spellChroma(window, chroma) : pitch;
@@ -62,6 +63,7 @@ export class ControlledSpeller implements Speller {
 
   spell(notes: readonly NoteContext[]): SpelledPitch[] {
     const heard = this.base.spell(notes);
+    if (this.splits.length === 0 && !this.flipped && this.forced === undefined && this.shifted === 0) return heard;
     return notes.map((n, i) => this.split(n) ?? this.adjust(n, heard[i]!));
   }
 

@@ -38,6 +38,8 @@ export interface Speller {
 export class WindowSpeller implements Speller {
   private window: KeyboardWindow;
   private tonic: PitchClass | undefined;
+  /** Each key's spelling in the window, filled as keys are played. */
+  private spelled: Array<SpelledPitch | undefined> = [];
 
   constructor(windowOrKey: KeyboardWindow | DeclaredKey = DEFAULT_WINDOW) {
     if ('kind' in windowOrKey) {
@@ -54,7 +56,7 @@ export class WindowSpeller implements Speller {
   }
 
   peek(note: NoteContext): SpelledPitch {
-    return spellKey(this.window, note.key);
+    return (this.spelled[note.key] ??= spellKey(this.window, note.key));
   }
 
   noteOff(): void {}
@@ -70,6 +72,7 @@ export class WindowSpeller implements Speller {
   setKey(key: DeclaredKey): void {
     this.window = keyWindow(key);
     this.tonic = key.tonic;
+    this.spelled = [];
   }
 }
 
