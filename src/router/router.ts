@@ -2,17 +2,18 @@ import { CC, channelPressure, controlChange, noteOff, noteOn, polyPressure, prog
 import { decodeMessage, type MidiMessage } from '../midi/message.js';
 import { MidiStreamParser } from '../midi/parser.js';
 import { BEND_CENTRE } from '../midi/pitch-bend.js';
-import { keyOf, samePitch, spellKey, type SpelledPitch } from '../pitch/index.js';
+import { keyOf, spellKey, type SpelledPitch } from '../pitch/index.js';
 import type { ControlMap, EngineActions, Firing } from '../spelling/control-map.js';
 import type { NoteContext, Speller } from '../spelling/speller.js';
 import { ChordGatherer, type GatherSetting } from './chord-gatherer.js';
-import { EQUAL_TEMPERAMENT } from './equal-temperament.js';
 import type { RouterEvent } from './events.js';
 import { isParameterController, KeyboardState } from './keyboard-state.js';
 import { channelOf, keyOfNote, noteId, sourceOf, type NoteId } from './note-id.js';
 import type { OutputContext, OutputStrategy } from './output.js';
-import { PitchTable } from './pitch-table.js';
-import { VoiceBook, type Voice } from './voice-book.js';
+import type { PitchTable } from './pitch-table.js';
+import { planRespelling } from './respell.js';
+import { TableChoice } from './table-choice.js';
+import { VoiceBook } from './voice-book.js';
 
 export type { RouterEvent } from './events.js';
 
@@ -52,7 +53,7 @@ export class Router {
   private readonly context: OutputContext;
   private readonly actions: EngineActions;
   private readonly everyChannel: readonly number[];
-  private readonly tables = new Map<string, PitchTable>();
+  private readonly tables: TableChoice;
   private readonly observe: ((event: RouterEvent) => void) | undefined;
   private out: TimedMessage[] = [];
   private now = 0;
@@ -64,6 +65,7 @@ export class Router {
     const observe = (this.observe = setup.observer);
     const output = setup.output;
     this.keyboard = new KeyboardState(setup.wheelRange);
+    this.tables = new TableChoice(setup.table);
     this.gatherer = new ChordGatherer(setup.gather ?? 0);
     this.everyChannel = [...new Set([...output.allChannels, ...output.zoneChannels])];
     this.book = new VoiceBook({
@@ -293,27 +295,11 @@ export class Router {
     }
   }
 
-  /** The pitch table for new notes: 12-ET while passing; a just table moved to the speller's tonic. */
-  private tableNow(): PitchTable {
-    const base = this.setup.table;
-    if (!this.passThrough && base.tuning.kind !== 'just') return base;
-    const tonic = this.setup.speller.currentTonic();
-    const tuning = this.passThrough ? EQUAL_TEMPERAMENT : base.tuning.kind === 'just' && tonic ? base.tuning.withTonic(tonic) : base.tuning;
-    if (tuning === base.tuning) return base;
-    const id = this.passThrough ? 'pass' : `tonic ${tonic?.fifths}`;
-    let table = this.tables.get(id);
-    if (!table) {
-      table = new PitchTable(tuning, base.reference, base.synthA4);
-      this.tables.set(id, table);
-    }
-    return table;
-  }
-
   /** Tunes, places and starts one note (as the output can sound it: a sample set may lack a spelling). */
   private sound(id: NoteId, wanted: SpelledPitch, velocity: number): void {
     const output = this.setup.output;
     const pitch = output.available ? output.available(wanted) : wanted;
-    const tuned = this.tableNow().tune(pitch);
+    const tuned = this.tables.now(this.passThrough, () => this.setup.speller.currentTonic()).tune(pitch);
     const placement = output.place(tuned, this.now, this.context);
     if (!placement) {
       this.observe?.({ type: 'note-dropped', time: this.now, id, pitch, reason: 'its tuned key lies outside 0…127' });
@@ -337,38 +323,21 @@ export class Router {
     return { key: keyOfNote(id), velocity, time: this.now, channel: channelOf(id), source: sourceOf(id) };
   }
 
-  /**
-   * Respells what sounds now with the context as it is (a sustained chord after a flip, say).
-   * Where every voice of a tuning unit (a bend channel, an MTS slot or key class) changes the
-   * same way, the unit is retuned in place and the notes ring on; a held note that cannot be
-   * retuned in place is struck again in its new tuning.
-   */
+  /** Respells what sounds now with the context as it is: units retuned in place where they can be, else struck again. */
   private respell(): void {
-    const inPlace = this.setup.output.inPlace;
-    const changes = new Map<number, Array<{ voice: Voice; pitch: SpelledPitch }>>();
-    const unchanged = new Set<number>();
-    for (const voice of this.book.voices()) {
-      const pitch = this.setup.speller.peek(this.contextOf(voice.id, voice.velocity));
-      const unit = inPlace ? inPlace.unitOf(voice.placement) : -1;
-      if (samePitch(pitch, voice.pitch) || keyOf(pitch) !== keyOf(voice.pitch)) {
-        unchanged.add(unit);
-        continue;
-      }
-      changes.set(unit, [...(changes.get(unit) ?? []), { voice, pitch }]);
+    const output = this.setup.output;
+    const plan = planRespelling(this.book.voices(), (v) => this.setup.speller.peek(this.contextOf(v.id, v.velocity)), output.inPlace);
+    const table = this.tables.now(this.passThrough, () => this.setup.speller.currentTonic());
+    const restrike = [...plan.restrike];
+    for (const unit of plan.retune) {
+      const first = unit[0]!;
+      if (output.inPlace?.retune(first.voice.placement, table.tune(first.pitch), this.context)) for (const c of unit) c.voice.pitch = c.pitch;
+      else restrike.push(...unit);
     }
-    const table = this.tableNow();
-    for (const [unit, list] of changes) {
-      const first = list[0]!;
-      const uniform = list.every((c) => c.pitch.fifths === first.pitch.fifths);
-      if (inPlace && !unchanged.has(unit) && uniform && unit >= 0 && inPlace.retune(first.voice.placement, table.tune(first.pitch), this.context)) {
-        for (const c of list) c.voice.pitch = c.pitch;
-        continue;
-      }
-      for (const { voice, pitch } of list) {
-        if (voice.state !== 'held') continue; // a note held only by the pedal cannot be struck again
-        this.book.cut((v) => v === voice, 'respelled');
-        this.sound(voice.id, pitch, voice.velocity);
-      }
+    for (const { voice, pitch } of restrike) {
+      if (voice.state !== 'held') continue; // a note held only by the pedal cannot be struck again
+      this.book.cut((v) => v === voice, 'respelled');
+      this.sound(voice.id, pitch, voice.velocity);
     }
   }
 
