@@ -98,8 +98,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const setup = cli.setup === undefined ? undefined : loadSetupFile(cli.setup);
   const json = setup?.json;
   const sampleSet = cli.sampleSet === undefined ? undefined : loadSampleSet(cli.sampleSet);
-  const preset = loadTuningPreset(cli.tuning ?? json?.tuning ?? 'meantone-1-4');
-  const refText = cli.ref ?? json?.reference;
+  const preset = cli.tuning !== undefined ? loadTuningPreset(cli.tuning) : (setup?.tuning ?? loadTuningPreset('meantone-1-4'));
   const mode: OutputMode = sampleSet ? 'samples' : (cli.mode ?? json?.output?.mode ?? 'bend');
   if (sampleSet && cli.mode !== undefined && cli.mode !== 'samples') throw new UserError(`--sample-set plays through --mode samples, not --mode ${cli.mode}`, 2);
   refuseForeignSettings(mode, {
@@ -111,10 +110,9 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     sampleSet: cli.sampleSet,
   });
   const entry = OUTPUT_MODES[mode];
-  const channelText = cli.channels ?? json?.output?.channels;
-  const channels = channelText === undefined ? undefined : parseChannels(channelText, cli.channels !== undefined ? '--channels' : `${setup?.file}: output.channels`);
+  const channels = cli.channels !== undefined ? parseChannels(cli.channels) : setup?.channels;
   if (channels && entry.channels === 'one' && channels.length > 1) {
-    throw new UserError(`--channels "${channelText}": --mode ${mode} sends on one channel; give just one`, 2);
+    throw new UserError(`--channels "${cli.channels ?? json?.output?.channels}": --mode ${mode} sends on one channel; give just one`, 2);
   }
   if (channels && entry.channels === 'set') throw new UserError(`--channels: --mode ${mode} uses the sample set's own channels`, 2);
   const windowGiven = cli.window !== undefined;
@@ -129,7 +127,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const octaveForm = cli.octaveForm ?? (json?.output?.octaveForm === undefined ? undefined : String(json.output.octaveForm));
   const options: EngineOptionsInput = {
     tuning: preset.tuning,
-    reference: refText !== undefined ? parseReference(refText, cli.ref !== undefined ? '--ref' : `${setup?.file}: reference`) : (preset.reference ?? A440),
+    reference: cli.ref !== undefined ? parseReference(cli.ref, '--ref') : (setup?.reference ?? preset.reference ?? A440),
     mode,
     layout: cli.layout ?? json?.output?.layout,
     channels,

@@ -1,10 +1,10 @@
 import type { Command } from 'commander';
-import { existsSync, readFileSync } from 'node:fs';
 import { relative } from 'node:path';
 import { formatProblem, parseJsonText } from '../presets/problems.js';
 import { checkSetup } from '../presets/setup-file.js';
 import { checkTuningPreset, loadBuiltInTuningPresets, PRESETS_DIR } from '../presets/tuning-presets.js';
 import { UserError } from '../util/errors.js';
+import { readTextFile } from '../util/files.js';
 import type { CommandIo } from '../util/io.js';
 import { makeStyle, wantsColour } from '../text/style.js';
 import { renderTable } from '../text/table.js';
@@ -40,22 +40,20 @@ export function registerPresetCommands(program: Command, io: CommandIo): void {
 
   program
     .command('check')
-    .description('validate a tuning or setup file and print every problem in it')
+    .description('validate a tuning or setup file exactly as play, render and spell load it, and print every problem in it')
     .argument('<file>', 'a tuning or setup .json file (a tuning has a "kind")')
     .action((file: string) => {
-      if (!existsSync(file)) throw new UserError(`${file}: no such file`);
-      const text = readFileSync(file, 'utf8');
-      const isTuning = (() => {
-        const json = parseJsonText(text, file);
-        return typeof json === 'object' && json !== null && 'kind' in json;
-      })();
+      const text = readTextFile(file);
+      const value = parseJsonText(text, file);
+      const isTuning = typeof value === 'object' && value !== null && 'kind' in value;
       const check = isTuning ? checkTuningPreset(text, file) : checkSetup(text, file);
+      for (const problem of check.problems) io.stderr.write(formatProblem(file, problem, check.source) + '\n');
       const ok = 'preset' in check ? check.preset && `${check.preset.name} (${check.preset.kind})` : check.setup && `setup${check.setup.json.name ? ` "${check.setup.json.name}"` : ''}`;
       if (ok) {
         io.stdout.write(`${file}: ok: ${ok}\n`);
         return;
       }
-      for (const problem of check.problems) io.stderr.write(formatProblem(file, problem) + '\n');
-      throw new UserError(`${file}: ${check.problems.length} problem${check.problems.length === 1 ? '' : 's'}`);
+      const count = check.problems.filter((p) => !p.warning).length;
+      throw new UserError(`${file}: ${count} problem${count === 1 ? '' : 's'}`);
     });
 }

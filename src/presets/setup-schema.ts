@@ -83,3 +83,4 @@ export const setupSchema = z.strictObject({
 
 export type SetupJson = z.infer<typeof setupSchema>;
 export type ControlJson = z.infer<typeof controlSchema>;
+export type SplitKeyJson = z.infer<typeof splitKeySchema>;

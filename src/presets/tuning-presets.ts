@@ -18,7 +18,8 @@ import {
 } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
 import { readTextFile } from '../util/files.js';
-import { collecting, parseJsonText, throwProblems, zodProblems, type Problem } from './problems.js';
+import { parseJsonSource, type JsonSource } from './json-source.js';
+import { collecting, throwProblems, zodProblems, type Problem } from './problems.js';
 import { tuningPresetSchema, type TuningPresetJson } from './tuning-schema.js';
 
 /** A tuning preset, validated and built. */
@@ -106,11 +107,18 @@ function centsSizes(table: Readonly<Record<string, number | string>>, origin: Pi
 export interface PresetCheck {
   readonly preset: TuningPreset | undefined;
   readonly problems: readonly Problem[];
+  /** The parsed file, to put line numbers on problems. */
+  readonly source: JsonSource;
 }
 
 /** Validates a preset's text, collecting every problem instead of stopping at the first. */
 export function checkTuningPreset(text: string, file: string, id = basename(file).replace(/\.json$/u, '')): PresetCheck {
-  const parsed = tuningPresetSchema.safeParse(parseJsonText(text, file));
+  const source = parseJsonSource(text, file);
+  return { ...checkTuningJson(source.value, id, file), source };
+}
+
+function checkTuningJson(value: unknown, id: string, file: string): Omit<PresetCheck, 'source'> {
+  const parsed = tuningPresetSchema.safeParse(value, { reportInput: true });
   if (!parsed.success) return { preset: undefined, problems: zodProblems(parsed.error) };
   const json = parsed.data;
   const problems: Problem[] = [];
@@ -133,8 +141,58 @@ export function checkTuningPreset(text: string, file: string, id = basename(file
 /** Reads and validates a preset file; the first problem becomes a one-line error. */
 export function loadTuningPresetFile(file: string, id?: string): TuningPreset {
   const check = checkTuningPreset(readTextFile(file), file, id);
-  if (!check.preset) throwProblems(file, check.problems, `run "diesis check ${file}" to see them all`);
+  if (!check.preset) throwProblems(file, check.problems, `run "diesis check ${file}" to see them all`, check.source);
   return check.preset;
+}
+
+/** Names players use for built-in tunings (common practice, no source). */
+export const TUNING_ALIASES: Readonly<Record<string, string>> = {
+  'quarter-comma': 'meantone-1-4',
+  'quarter-comma-meantone': 'meantone-1-4',
+  'third-comma': 'meantone-1-3',
+  'fifth-comma': 'meantone-1-5',
+  'sixth-comma': 'meantone-1-6',
+  'two-sevenths-comma': 'meantone-2-7',
+  werckmeister: 'werckmeister-3',
+  kirnberger: 'kirnberger-3',
+  young: 'young-2',
+  'equal': 'edo-12',
+  '12-et': 'edo-12',
+  '12-tet': 'edo-12',
+  '12-edo': 'edo-12',
+  '19-et': 'edo-19',
+  '31-et': 'edo-31',
+  '53-et': 'edo-53',
+  just: 'just-major',
+};
+
+/** Edit distance, for suggestions. */
+function distance(a: string, b: string): number {
+  const row = Array.from({ length: b.length + 1 }, (_, j) => j);
+  for (let i = 1; i <= a.length; i++) {
+    let diagonal = row[0]!;
+    row[0] = i;
+    for (let j = 1; j <= b.length; j++) {
+      const above = row[j]!;
+      row[j] = Math.min(above + 1, row[j - 1]! + 1, diagonal + (a[i - 1] === b[j - 1] ? 0 : 1));
+      diagonal = above;
+    }
+  }
+  return row[b.length]!;
+}
+
+/** The built-in ids nearest to what was typed: those that contain it, else the closest spellings. */
+export function suggestTunings(text: string): string[] {
+  const wanted = text.toLowerCase();
+  const ids = builtInTuningIds();
+  const containing = ids.filter((id) => id.includes(wanted) || wanted.includes(id));
+  if (containing.length > 0) return containing;
+  return ids
+    .map((id) => ({ id, d: distance(wanted, id) }))
+    .filter((x) => x.d <= Math.max(2, Math.floor(wanted.length / 3)))
+    .sort((x, y) => x.d - y.d)
+    .map((x) => x.id)
+    .slice(0, 4);
 }
 
 export function builtInTuningIds(): string[] {
@@ -148,11 +206,14 @@ export function builtInTuningIds(): string[] {
 export function loadTuningPreset(idOrPath: string): TuningPreset {
   const looksLikePath = idOrPath.includes('/') || idOrPath.includes('\\') || idOrPath.endsWith('.json');
   if (looksLikePath) return loadTuningPresetFile(resolve(idOrPath), idOrPath);
-  const file = join(PRESETS_DIR, `${idOrPath}.json`);
-  if (!/^[a-z0-9-]+$/u.test(idOrPath) || !existsSync(file)) {
-    throw new UserError(`unknown tuning "${idOrPath}": run "diesis presets" to list the built-in ones, or give a path to a .json file`);
+  const id = TUNING_ALIASES[idOrPath.toLowerCase()] ?? idOrPath;
+  const file = join(PRESETS_DIR, `${id}.json`);
+  if (!/^[a-z0-9-]+$/u.test(id) || !existsSync(file)) {
+    const near = suggestTunings(idOrPath);
+    const hint = near.length > 0 ? `did you mean ${near.join(', ')}?` : 'run "diesis presets" to list the built-in ones, or give a path to a .json file';
+    throw new UserError(`unknown tuning "${idOrPath}": ${hint}`);
   }
-  return loadTuningPresetFile(file, idOrPath);
+  return loadTuningPresetFile(file, id);
 }
 
 export function loadBuiltInTuningPresets(): TuningPreset[] {

@@ -3,11 +3,16 @@ import { UserError } from '../util/errors.js';
 /** Parses `2-16`, `1,3,5-8` (channels as a synth shows them, 1…16) into channels 0…15. */
 export function parseChannels(text: string, what = '--channels'): number[] {
   const channels: number[] = [];
+  const fail = (detail: string): never => {
+    throw new UserError(`${what ? `${what} ` : ''}"${text}": ${detail}`, 2);
+  };
   for (const part of text.split(',')) {
     const match = /^\s*(\d+)\s*(?:-\s*(\d+)\s*)?$/u.exec(part);
-    const from = Number(match?.[1]);
-    const to = Number(match?.[2] ?? match?.[1]);
-    if (!match || from < 1 || to > 16 || to < from) throw new UserError(`${what} "${text}": write channels 1–16 as a list or ranges, such as 2-16 or 1,3,5-8`, 2);
+    if (!match) fail(`write channels 1–16 as a list or ranges, such as 2-16 or 1,3,5-8`);
+    const from = Number(match![1]);
+    const to = Number(match![2] ?? match![1]);
+    for (const c of [from, to]) if (c < 1 || c > 16) fail(`${c} is not a MIDI channel (1–16)`);
+    if (to < from) fail(`${part.trim()} runs downward; write the lower channel first`);
     for (let c = from; c <= to; c++) if (!channels.includes(c - 1)) channels.push(c - 1);
   }
   return channels;

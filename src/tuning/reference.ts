@@ -24,7 +24,9 @@ export const A440: Reference = reference(parseSpelledPitch('A4'), 440);
 export function parseReference(text: string, what = 'reference'): Reference {
   const parts = text.split('=');
   if (parts.length !== 2) throw new UserError(`${what} "${text}" must be NOTE=HZ, as in A4=415`);
-  const pitch = parseSpelledPitch(parts[0] ?? '', what);
+  const note = (parts[0] ?? '').trim();
+  if (/^[A-Ga-g][#b♯♭x𝄪𝄫]*$/u.test(note)) throw new UserError(`${what} "${text}": the note needs its octave, as in ${note}4=${(parts[1] ?? '').trim() || '415'}`);
+  const pitch = parseSpelledPitch(note, what);
   const hzText = (parts[1] ?? '').trim();
   if (!/^\d+(\.\d+)?$/u.test(hzText)) throw new UserError(`${what} "${text}": "${hzText}" is not a frequency in Hz`);
   const hz = Number(hzText);

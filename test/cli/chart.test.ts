@@ -102,8 +102,9 @@ describe('diesis presets and check', () => {
     writeFileSync(file, JSON.stringify({ output: { mode: 'bend', bendRange: 500 }, controls: [{ cc: 4, action: 'wiggle' }] }));
     const bad = await runCli('check', file);
     expect(bad.code).toBe(1);
-    expect(bad.stderr).toMatch(/\$\.output\.bendRange: /u);
-    expect(bad.stderr).toMatch(/\$\.controls\[0\]\.action: /u);
+    // FILE:LINE: where: what (the file is written on one line by JSON.stringify).
+    expect(bad.stderr).toMatch(/setup\.json:1: output\.bendRange: 500 is above 96/u);
+    expect(bad.stderr).toMatch(/setup\.json:1: controls\[0\]\.action: must be one of "flip"/u);
   });
 
   it('validates a good file and prints every problem of a bad one', async () => {
@@ -112,8 +113,8 @@ describe('diesis presets and check', () => {
     expect(bad.code).toBe(1);
     const lines = bad.stderr.trim().split('\n');
     expect(lines).toEqual([
-      'test/fixtures/bad-tuning.json: $.chain.fifths[2]: unknown comma "pythagorian" (use syntonic, pythagorean, schisma, diaschisma, diesis, septimal, or a ratio such as 81/80)',
-      'test/fixtures/bad-tuning.json: $.chain.fifths[7]: cents "seven hundred" is not a decimal number',
+      'test/fixtures/bad-tuning.json:8: chain.fifths[2]: unknown comma "pythagorian" (use syntonic, pythagorean, schisma, diaschisma, diesis, septimal, or a ratio such as 81/80)',
+      'test/fixtures/bad-tuning.json:8: chain.fifths[7]: cents "seven hundred" is not a decimal number',
       'diesis: test/fixtures/bad-tuning.json: 2 problems',
     ]);
   });

@@ -78,14 +78,15 @@ describe('tuning presets', () => {
   });
 
   it('reports unknown ids, unreadable files and bad JSON in one line', () => {
-    expect(() => loadTuningPreset('meantone-9-9')).toThrow(/^unknown tuning "meantone-9-9": run "diesis presets"/u);
+    expect(() => loadTuningPreset('meantone-9-9')).toThrow(/^unknown tuning "meantone-9-9": did you mean meantone-1-/u);
+    expect(() => loadTuningPreset('xyzzy')).toThrow(/^unknown tuning "xyzzy": run "diesis presets"/u);
     expect(() => loadTuningPreset('/nonexistent/x.json')).toThrow(/^\/nonexistent\/x\.json: no such file$/u);
     const dir = tempDir('diesis-');
     const bad = join(dir, 'bad.json');
     writeFileSync(bad, '{ "name": ');
-    expect(() => loadTuningPreset(bad)).toThrow(/bad\.json: not valid JSON/u);
+    expect(() => loadTuningPreset(bad)).toThrow(/bad\.json:1:11: not valid JSON: value expected/u); // FILE:LINE:COLUMN of the missing value
     const twoProblems = join(dir, 'two.json');
     writeFileSync(twoProblems, JSON.stringify({ kind: 'regular', fifth: 'pure', name: 'x', description: 'd' , source: 's', origin: 'Z', reference: 'A4=0.5' }));
-    expect(() => loadTuningPreset(twoProblems)).toThrow(/two\.json: \$\.origin: .*\(and 1 more problem; run "diesis check/u);
+    expect(() => loadTuningPreset(twoProblems)).toThrow(/two\.json:1: origin: .*\(and 1 more problem; run "diesis check/u);
   });
 });
