@@ -1,6 +1,6 @@
 import { Option, type Command } from 'commander';
 import { loadSampleSet, type LoadedSampleSet } from '../audio/sample-set.js';
-import { parseWindow } from '../pitch/index.js';
+import { formatRange, parseWindow } from '../pitch/index.js';
 import { loadSetupFile, type SetupFile } from '../presets/setup-file.js';
 import { loadTuningPreset, type TuningPreset } from '../presets/tuning-presets.js';
 import { OUTPUT_MODE_IDS, OUTPUT_MODES, type EngineOptionsInput, type OutputMode } from '../router/setup.js';
@@ -8,7 +8,9 @@ import type { ModeSetting } from '../router/output.js';
 import { parseChannels } from '../text/channels.js';
 import { ControlMap } from '../spelling/control-map.js';
 import { ControlledSpeller } from '../spelling/controlled.js';
-import { parseKey } from '../spelling/keys.js';
+import { formatKey, parseKey, type DeclaredKey } from '../spelling/keys.js';
+
+const C_MAJOR: DeclaredKey = { tonic: { fifths: 0 }, mode: 'major' };
 import { createStrategy, STRATEGIES, STRATEGY_ENTRIES, type Strategy } from '../spelling/strategy.js';
 import { A440, parseReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
@@ -65,6 +67,8 @@ export function addEngineOptions(command: Command): Command {
 }
 
 export interface ResolvedEngine {
+  /** The spelling in force, in words: `follow, starting in D minor`, `fixed in E♭..G♯`, `the key of D minor`. */
+  readonly spellingLabel: string;
   readonly preset: TuningPreset;
   readonly setup: SetupFile | undefined;
   readonly strategy: Strategy;
@@ -144,5 +148,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     controls: new ControlMap(setup?.bindings ?? [], speller),
     gather: cli.gather ?? json?.spelling?.gatherMs,
   };
-  return { preset, setup, strategy, speller, options, sampleSet };
+  const spellingLabel =
+    strategy === 'fixed' ? `fixed in ${formatRange(speller.currentWindow())}` : strategy === 'key' ? `the key of ${formatKey(key!)}` : `${strategy}, starting in ${formatKey(key ?? C_MAJOR)}`;
+  return { spellingLabel, preset, setup, strategy, speller, options, sampleSet };
 }

@@ -57,7 +57,7 @@ export function registerRender(program: Command, io: CommandIo): void {
   addEngineOptions(command).action((input: string, cli: RenderOptions) => {
     if (!cli.output && !cli.wav) throw new UserError('render needs -o OUT.mid or --wav OUT.wav, the file to write', 2);
     for (const out of [cli.output, cli.wav]) if (out && resolve(out) === resolve(input)) throw new UserError(`${out}: refusing to overwrite the input file`, 2);
-    const { preset, options, sampleSet } = resolveEngineCli(cli);
+    const { preset, options, sampleSet, spellingLabel } = resolveEngineCli(cli);
     const content = readMidiFile(readInputFile(input), input);
     const engine = createEngine({ ...options, gather: options.gather ?? 'same-time' }); // in a file, equal onsets are a chord
     let times: number[] = [];
@@ -73,6 +73,6 @@ export function registerRender(program: Command, io: CommandIo): void {
     }
     const setup = describeSetup(preset.name, engine.options);
     const written = [cli.output, cli.wav].filter(Boolean).join(' and ');
-    io.stdout.write(summaryText(summary, `${input} → ${written}: ${setup}`));
+    io.stdout.write(summaryText(summary, `${input} → ${written}: ${setup}, spelling ${spellingLabel}`));
   });
 }

@@ -25,7 +25,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
     .option('--json', 'JSON Lines, one object per note-on in file order (fields in the README)')
     .option('--ascii', 'write # and b instead of ♯ and ♭');
   addEngineOptions(command).action((input: string, cli: SpellOptions) => {
-    const { preset, options, strategy } = resolveEngineCli(cli);
+    const { preset, options, spellingLabel } = resolveEngineCli(cli);
     const content = readMidiFile(readInputFile(input), input);
     let tick = 0;
     const report = new SpellReport(DEFAULT_WOLF_LIMITS);
@@ -44,7 +44,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
     }
     const names = { accidentals: cli.ascii ? ('ascii' as const) : ('unicode' as const) };
     const style = makeStyle(wantsColour(io.stdout));
-    io.stdout.write(style.bold(`${input}: ${describeSetup(preset.name, engine.options)}, spelling ${strategy}`) + '\n');
+    io.stdout.write(style.bold(`${input}: ${describeSetup(preset.name, engine.options)}, spelling ${spellingLabel}`) + '\n');
     io.stdout.write(
       renderTable(
         [
@@ -60,6 +60,12 @@ export function registerSpell(program: Command, io: CommandIo): void {
         style.bold,
       ) + '\n\n',
     );
-    io.stdout.write(`${report.rows.length} notes\n` + report.summaryText(names));
+    const { tally } = engine;
+    const extra = [
+      tally.notesDropped ? `${tally.notesDropped} dropped (their tuned key lies outside 0–127)` : '',
+      tally.substitutions ? `${tally.substitutions} played as the nearest spelling the sample set has` : '',
+      tally.outOfRange ? `${tally.outOfRange} beyond what the output can tune` : '',
+    ].filter(Boolean);
+    io.stdout.write(`${report.rows.length} notes${extra.length ? `; ${extra.join('; ')}` : ''}\n` + report.summaryText(names));
   });
 }

@@ -1,7 +1,8 @@
 import { chromaOf, formatPitchClass, formatSpelledPitch, nearestSpelling, pitchClass, type NameStyle, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import type { NoteEvent } from '../router/events.js';
 import { channelOf, keyOfNote, type NoteId } from '../router/note-id.js';
-import { PURE_FIFTH_INTERVAL, PURE_MAJOR_THIRD, pureCents, type WolfLimits } from '../tuning/index.js';
+import { PURE_FIFTH_INTERVAL, PURE_MAJOR_THIRD, pureCents, type PureInterval, type WolfLimits } from '../tuning/index.js';
+import { signed } from '../text/table.js';
 import { mod } from '../util/errors.js';
 
 /** One spelled note-on of a file, as `diesis spell` reports it. */
@@ -18,8 +19,33 @@ export interface SpellRow {
   readonly cents: number;
 }
 
+/** The intervals the wolf list watches, by keys apart (octaves folded), with their pure ratios (common practice, no source). */
+const WATCHED: ReadonlyMap<number, { readonly kind: WolfKind; readonly pure: PureInterval; readonly limit: keyof WolfLimits }> = new Map([
+  [7, { kind: 'fifth', pure: PURE_FIFTH_INTERVAL, limit: 'fifth' }],
+  [4, { kind: 'major third', pure: PURE_MAJOR_THIRD, limit: 'third' }],
+  [3, { kind: 'minor third', pure: { p: 6, q: 5, name: 'minor third' }, limit: 'third' }],
+  [8, { kind: 'minor sixth', pure: { p: 8, q: 5, name: 'minor sixth' }, limit: 'third' }],
+  [9, { kind: 'major sixth', pure: { p: 5, q: 3, name: 'major sixth' }, limit: 'third' }],
+] as const);
+
+/** Names of spelled intervals by their span on the line of fifths (upper − lower), for the ones the wolf list meets. */
+const SPELLED: ReadonlyMap<number, string> = new Map([
+  [1, 'fifth'],
+  [-11, 'diminished sixth'],
+  [4, 'major third'],
+  [-8, 'diminished fourth'],
+  [-3, 'minor third'],
+  [9, 'augmented second'],
+  [-4, 'minor sixth'],
+  [8, 'augmented fifth'],
+  [3, 'major sixth'],
+  [-9, 'diminished seventh'],
+]);
+
+export type WolfKind = 'fifth' | 'major third' | 'minor third' | 'minor sixth' | 'major sixth';
+
 export interface WolfCount {
-  readonly kind: 'fifth' | 'third';
+  readonly kind: WolfKind;
   readonly lower: PitchClass;
   readonly upper: PitchClass;
   readonly deviation: number;
@@ -53,15 +79,15 @@ export class SpellReport {
     this.held.delete(id);
   }
 
-  /** A fifth (7 keys apart, octaves aside) or major third (4) between two sounding notes, measured from the tuning. */
+  /** A fifth, third or sixth (by keys apart, octaves aside) between two sounding notes, measured from the tuning. */
   private checkPair(a: SpellRow, b: SpellRow): void {
     const [low, high] = a.key <= b.key ? [a, b] : [b, a];
-    const distance = mod(high.key - low.key, 12);
-    const kind = distance === 7 ? 'fifth' : distance === 4 ? 'third' : undefined;
-    if (!kind || high.key === low.key) return;
+    const watched = WATCHED.get(mod(high.key - low.key, 12));
+    if (!watched || high.key === low.key) return;
+    const { kind } = watched;
     const size = mod(1200 * Math.log2(high.hz / low.hz), 1200); // octaves folded away
-    const deviation = size - pureCents(kind === 'fifth' ? PURE_FIFTH_INTERVAL : PURE_MAJOR_THIRD);
-    if (Math.abs(deviation) <= (kind === 'fifth' ? this.limits.fifth : this.limits.third)) return;
+    const deviation = size - pureCents(watched.pure);
+    if (Math.abs(deviation) <= this.limits[watched.limit]) return;
     const id = `${kind} ${low.pitch.fifths} ${high.pitch.fifths}`;
     const entry = this.wolves.get(id) ?? { kind, lower: pitchClass(low.pitch.fifths), upper: pitchClass(high.pitch.fifths), deviation, count: 0 };
     entry.count++;
@@ -100,7 +126,9 @@ export class SpellReport {
     lines.push(wolves.length === 0 ? 'wolves: none sounded' : 'wolves sounded:');
     for (const w of wolves.slice(0, 12)) {
       const pair = `${name(w.lower)}${style.accidentals === 'ascii' ? '-' : '–'}${name(w.upper)}`;
-      lines.push(`  ${w.kind.padEnd(6)}${pair.padEnd(8)} ${w.deviation >= 0 ? '+' : ''}${w.deviation.toFixed(1)} cents from pure, ${w.count}×`);
+      const spelled = SPELLED.get(w.upper.fifths - w.lower.fifths);
+      const as = spelled && spelled !== w.kind ? ` (spelled as ${/^[aeiou]/u.test(spelled) ? 'an' : 'a'} ${spelled})` : '';
+      lines.push(`  ${w.kind.padEnd(12)}${pair.padEnd(8)} ${signed(w.deviation, 1, style.accidentals === 'ascii')} cents from pure, ${w.count}${style.accidentals === 'ascii' ? 'x' : '×'}${as}`);
     }
     return lines.join('\n') + '\n';
   }
