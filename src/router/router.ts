@@ -193,6 +193,11 @@ export class Router {
     return this.collect(time, () => this.doPanic(reason));
   }
 
+  /** Carries out a router action asked for from outside the control map (the stage page), as a bound control would. */
+  act(time: number, action: RouterAction): TimedMessage[] {
+    return this.collect(time, () => this.routerAction(action));
+  }
+
   /** Lets go of every key and lifts the pedals, as a player would at the end: release tails ring on. */
   releaseAll(time: number): TimedMessage[] {
     return this.collect(time, () => {

@@ -1,0 +1,130 @@
+import { formatPitchClass, formatRange, formatSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
+import type { Router, RouterEvent } from '../router/router.js';
+import type { ControlledSpeller } from '../spelling/controlled.js';
+import { equalTemperedDeviation, formatReference, type Reference, type Tuning } from '../tuning/index.js';
+import type { StageKey, StageNote, StagePiece, StageState, StageWarning } from './stage-state.js';
+
+const UNICODE: NameStyle = { accidentals: 'unicode' };
+const BLACK = new Set([1, 3, 6, 8, 10]);
+/** How many warnings the page keeps. */
+export const STAGE_WARNINGS = 5;
+
+interface Held {
+  readonly pitch: SpelledPitch;
+  readonly key: number;
+  readonly cents: number;
+  readonly hz: number;
+  pedalHeld: boolean;
+}
+
+/**
+ * The page's fold over the engine's events: which notes sound (a key released under a pedal stays,
+ * marked as held by the pedal, until the pedals are up) and the latest warnings in words.
+ */
+export class StageTracker {
+  private readonly held = new Map<number, Held>();
+  private readonly recent: StageWarning[] = [];
+  private nextWarning = 1;
+
+  constructor(private readonly pedalsDown: () => boolean) {}
+
+  event(e: RouterEvent): void {
+    const id = (source: number, channel: number, key: number): number => source * 2048 + channel * 128 + key;
+    switch (e.type) {
+      case 'note':
+        this.held.set(id(e.source, e.inChannel, e.inKey), { pitch: e.pitch, key: e.inKey, cents: e.cents, hz: e.hz, pedalHeld: false });
+        return;
+      case 'key-up': {
+        const note = this.held.get(id(e.source, e.inChannel, e.inKey));
+        if (!note) return;
+        if (this.pedalsDown()) note.pedalHeld = true;
+        else this.held.delete(id(e.source, e.inChannel, e.inKey));
+        return;
+      }
+      case 'panic':
+        this.held.clear();
+        this.warn(`PANIC (${e.reason}): every note was stopped`);
+        return;
+      case 'steal':
+        this.warn(`ran out of synth channels: ${e.voices} ${e.voices === 1 ? 'note was' : 'notes were'} cut short to make room`);
+        return;
+      case 'out-of-range':
+        this.warn(`${formatSpelledPitch(e.pitch, UNICODE)} needs ${e.neededCents.toFixed(1)} cents, more than the synth’s bend range: it sounds out of tune`);
+        return;
+      case 'note-dropped':
+        this.warn(`key ${e.inKey} was not played: ${e.reason}`);
+        return;
+    }
+  }
+
+  /** A warning from outside the engine (a port came or went). */
+  warn(text: string): void {
+    this.recent.push({ id: this.nextWarning++, text });
+    if (this.recent.length > STAGE_WARNINGS) this.recent.shift();
+  }
+
+  sounding(): StageNote[] {
+    if (!this.pedalsDown()) for (const [id, note] of this.held) if (note.pedalHeld) this.held.delete(id);
+    return [...this.held.values()]
+      .sort((a, b) => a.hz - b.hz)
+      .map((n) => ({ spelling: formatSpelledPitch(n.pitch, UNICODE), key: n.key, cents: n.cents, hz: n.hz, pedalHeld: n.pedalHeld }));
+  }
+
+  warnings(): StageWarning[] {
+    return [...this.recent];
+  }
+}
+
+/** Everything the page shows comes from here: the session's engine, speller and setup. */
+export interface StageSources {
+  readonly router: Router;
+  readonly speller: ControlledSpeller;
+  readonly tuning: Tuning;
+  readonly reference: Reference;
+  readonly tuningId: string;
+  readonly tuningName: string;
+  readonly strategy: string;
+  readonly piece: StagePiece;
+  /** The tuning picture (SVG), drawn once per tuning. */
+  readonly picture?: string | undefined;
+  readonly synthConnected: () => boolean;
+  /** The bar when following a score. */
+  readonly bar?: (() => number | null) | undefined;
+}
+
+/** A lone piece: one of one, nowhere to go. */
+export function lonePiece(title: string): StagePiece {
+  return { title, index: 0, count: 1, canPrevious: false, canNext: false };
+}
+
+/** The snapshot the page shows now. Reads only; `peek` asks the speller without letting it hear anything. */
+export function stageStateOf(sources: StageSources, tracker: StageTracker, time: number): StageState {
+  const { router, speller, reference } = sources;
+  const tonic = speller.currentTonic();
+  const tuning = sources.tuning.kind === 'just' && tonic ? sources.tuning.withTonic(tonic) : sources.tuning;
+  const keys: StageKey[] = [];
+  for (let chroma = 0; chroma < 12; chroma++) {
+    const pitch = speller.peek({ key: 60 + chroma, velocity: 64, time, channel: 0, source: 0 });
+    keys.push({
+      chroma,
+      black: BLACK.has(chroma),
+      spelling: formatPitchClass(pitch, UNICODE),
+      cents: router.passing ? 0 : equalTemperedDeviation(tuning, reference, pitch),
+    });
+  }
+  return {
+    piece: sources.piece,
+    tuning: { id: sources.tuningId, name: sources.tuningName, reference: `${formatReference(reference, UNICODE).replace('=', ' = ')} Hz`, picture: sources.picture },
+    strategy: sources.strategy,
+    key: tonic ? formatPitchClass(tonic, UNICODE) : null,
+    window: formatRange(speller.currentWindow(), UNICODE),
+    keys,
+    sounding: tracker.sounding(),
+    pedals: { sustain: router.sustainDown, sostenuto: router.sostenutoDown },
+    latches: { flip: speller.flip, freeze: speller.frozen, force: speller.force ?? null, shift: speller.shift },
+    bar: sources.bar?.() ?? null,
+    warnings: tracker.warnings(),
+    passing: router.passing,
+    synthConnected: sources.synthConnected(),
+  };
+}
