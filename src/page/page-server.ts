@@ -86,7 +86,8 @@ export class PageServer {
   private assets = new Map<string, { body: Buffer; type: string }>();
   private latest: StageState | undefined;
   private sentState = '';
-  private sentPicture: string | undefined;
+  /** The picture each page has now (sent only when it changes). */
+  private readonly pictures = new WeakMap<WebSocket, string>();
   private timer: NodeJS.Timeout | undefined;
   private lastFrame = 0;
   private handler: ControlHandler = () => ({ ok: false, reason: 'nothing listens to controls' });
@@ -188,15 +189,23 @@ export class PageServer {
     this.lastFrame = performance.now();
     const state = this.latest;
     if (!state || this.clients.size === 0) return;
-    const picture = state.tuning.picture;
-    if (picture !== undefined && picture !== this.sentPicture) {
-      this.sentPicture = picture;
-      this.broadcast(JSON.stringify({ type: 'picture', svg: picture } satisfies ToPage));
-    }
+    this.sendPicture(state);
     const text = JSON.stringify({ type: 'state', state: withoutPicture(state) } satisfies ToPage);
     if (text === this.sentState) return;
     this.sentState = text;
     this.broadcast(text);
+  }
+
+  private sendPicture(state: StageState, only?: WebSocket): void {
+    const picture = state.tuning.picture;
+    if (picture === undefined) return;
+    let text: string | undefined;
+    for (const ws of only ? [only] : this.clients) {
+      if (this.pictures.get(ws) === picture || ws.readyState !== ws.OPEN) continue;
+      text ??= JSON.stringify({ type: 'picture', svg: picture } satisfies ToPage);
+      ws.send(text);
+      this.pictures.set(ws, picture);
+    }
   }
 
   private broadcast(text: string): void {
@@ -267,7 +276,7 @@ export class PageServer {
     ws.on('message', (data, isBinary) => this.message(ws, isBinary ? '' : String(data)));
     const state = this.latest;
     if (state) {
-      if (state.tuning.picture !== undefined) ws.send(JSON.stringify({ type: 'picture', svg: state.tuning.picture } satisfies ToPage));
+      this.sendPicture(state, ws);
       ws.send(JSON.stringify({ type: 'state', state: withoutPicture(state) } satisfies ToPage));
     }
   }
