@@ -196,6 +196,11 @@ describe('the stage page opened to the network (--page-host)', () => {
     open.ws.close();
   });
 
+  it('fails in one line for an address this computer does not have', async () => {
+    // 203.0.113.0/24 is reserved for documentation (RFC 5737): no machine has it.
+    await expect(new PageServer().start({ host: '203.0.113.7', port: 0 })).rejects.toThrow(/^--page-host 203\.0\.113\.7: this computer has no such address$/u);
+  });
+
   it('fails in one line when the port is taken', async () => {
     const first = await serve();
     const second = new PageServer();
