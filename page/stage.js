@@ -14,6 +14,8 @@ let socket;
 let state;
 let nextId = 1;
 let retryMs = 400;
+/** The key choosers start at the key in force, once; after that they are the player's. */
+let chooserSet = false;
 
 function figure(n, digits) {
   const text = Math.abs(n).toFixed(digits);
@@ -114,6 +116,14 @@ function render(s) {
 
   const warnings = $('warnings');
   warnings.replaceChildren(...(s.warnings.length === 0 ? [el('li', 'none', 'none')] : [...s.warnings].reverse().map((w) => el('li', '', w.text))));
+
+  if (!chooserSet && s.key) {
+    const match = /^(?:tonic )?([A-G][♯♭]?)(?: (major|minor))?$/.exec(s.key);
+    const tonic = match?.[1].replace('♯', '#').replace('♭', 'b');
+    if (tonic && TONICS.includes(tonic)) $('tonic').value = tonic;
+    if (match?.[2]) $('mode').value = match[2];
+    chooserSet = true;
+  }
 
   $('previous').disabled = !s.piece.canPrevious;
   $('next').disabled = !s.piece.canNext;

@@ -1,6 +1,7 @@
 import { formatPitchClass, formatRange, formatSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
 import type { Router, RouterEvent } from '../router/router.js';
 import type { ControlledSpeller } from '../spelling/controlled.js';
+import { FollowSpeller } from '../spelling/follow.js';
 import { equalTemperedDeviation, formatReference, type Reference, type Tuning } from '../tuning/index.js';
 import type { StageKey, StageNote, StagePiece, StageState, StageWarning } from './stage-state.js';
 
@@ -97,6 +98,16 @@ export function lonePiece(title: string): StagePiece {
   return { title, index: 0, count: 1, canPrevious: false, canNext: false };
 }
 
+/** The key `follow` believes it is in (`D minor`); for the other strategies the tonic alone (`tonic D`), or null. */
+function keyInForce(speller: ControlledSpeller): string | null {
+  if (speller.base instanceof FollowSpeller) {
+    const { tonic, mode } = speller.base.key;
+    return `${formatPitchClass({ fifths: tonic }, UNICODE)} ${mode}`;
+  }
+  const tonic = speller.currentTonic();
+  return tonic ? `tonic ${formatPitchClass(tonic, UNICODE)}` : null;
+}
+
 /** The snapshot the page shows now. Reads only; `peek` asks the speller without letting it hear anything. */
 export function stageStateOf(sources: StageSources, tracker: StageTracker, time: number): StageState {
   const { router, speller, reference } = sources;
@@ -116,7 +127,7 @@ export function stageStateOf(sources: StageSources, tracker: StageTracker, time:
     piece: sources.piece,
     tuning: { id: sources.tuningId, name: sources.tuningName, reference: `${formatReference(reference, UNICODE).replace('=', ' = ')} Hz`, picture: sources.picture },
     strategy: sources.strategy,
-    key: tonic ? formatPitchClass(tonic, UNICODE) : null,
+    key: keyInForce(speller),
     window: formatRange(speller.currentWindow(), UNICODE),
     keys,
     sounding: tracker.sounding(),

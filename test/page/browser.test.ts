@@ -111,6 +111,19 @@ describe('the stage page in a real browser (headless chromium)', () => {
     await page.click('#flip');
     await page.waitForSelector('#flip[aria-pressed="false"]');
 
+    // 12-ET comparison and set key, from the page.
+    await page.click('#compare');
+    await page.waitForSelector('#passing', { state: 'visible' });
+    expect(await page.textContent('#key-8 .cents')).toBe('0.0');
+    await page.click('#compare');
+    await page.waitForSelector('#passing', { state: 'hidden' });
+    await page.selectOption('#tonic', 'Db');
+    await page.selectOption('#mode', 'major');
+    await page.click('#set-key');
+    await page.waitForSelector('#key-1 .spelling:text("D♭")');
+    expect(await page.textContent('#key')).toBe('tonic D♭');
+    expect(await page.textContent('#window')).toBe('F♭..A'); // D♭ major's window: from its lowered third (F♭) to its raised fifth (A)
+
     // Panic on the page: All Notes Off and centred bends reach the synth (MIDI 1.0), nothing sounds.
     const before = received.length;
     expect(synth.active().length).toBeGreaterThan(0);

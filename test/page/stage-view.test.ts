@@ -15,7 +15,7 @@ const meantone = loadTuningPreset('meantone-1-4');
 /** Quarter-comma meantone's fifth, 1200·log2(5)/4 cents (the comma definition; a handbook fact), against 12-ET's 700. */
 const FIFTH_FROM_ET = (1200 * Math.log2(5)) / 4 - 700;
 
-function stage(strategy: 'fixed' | 'key' = 'key', key = 'D minor') {
+function stage(strategy: 'fixed' | 'key' | 'follow' = 'key', key = 'D minor') {
   const speller = new ControlledSpeller(createStrategy({ strategy, key: parseKey(key) }));
   let tracker: StageTracker | undefined;
   const router: Router = createRouter({ tuning: meantone.tuning, reference: A440, speller, observer: (e) => tracker?.event(e) });
@@ -56,8 +56,14 @@ describe('the stage state', () => {
     // G♯ is five fifths above the reference A: 5 × (696.58 − 700) cents; E♭ six fifths below: −6 × …
     expect(s.keys[8]!.cents).toBeCloseTo(5 * FIFTH_FROM_ET, 6);
     expect(s.keys[3]!.cents).toBeCloseTo(-6 * FIFTH_FROM_ET, 6);
-    expect(s).toMatchObject({ strategy: 'key', key: 'D', window: 'E♭..G♯', passing: false, bar: null });
+    expect(s).toMatchObject({ strategy: 'key', key: 'tonic D', window: 'E♭..G♯', passing: false, bar: null });
     expect(s.tuning).toMatchObject({ id: 'meantone-1-4', reference: 'A4 = 440 Hz' });
+  });
+
+  it('names the key follow believes it is in, with its mode', () => {
+    expect(stage('follow', 'Bb major').now().key).toBe('B♭ major');
+    expect(stage('follow', 'F# minor').now().key).toBe('F♯ minor');
+    expect(stage('fixed').now().key).toBeNull();
   });
 
   it('shows the notes sounding, and those the pedal holds after their keys are up, until it lifts', () => {
