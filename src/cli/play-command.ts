@@ -124,13 +124,17 @@ export function registerPlay(program: Command, io: CommandIo): void {
   program
     .command('demo')
     .description('the live bridge on a built-in performance, through virtual ports: no hardware needed; serves the stage page')
-    .option('--loop', 'play the piece again and again until q or Ctrl-C (to watch the stage page)')
+    .option('--loop', 'play the piece again and again until q or Ctrl-C, to watch the stage page (the default on a terminal)')
+    .option('--once', 'play the piece once and end (the default off a terminal)')
     .option('--page [port]', 'the stage page’s port (default 8421, or any free one when that is taken)', integerOption('--page', 0, 65_535))
     .option('--page-host <address>', 'open the stage page to the network on this address; a token is then required')
     .option('--no-page', 'do not serve the stage page')
-    .action(async (cli: StagePageCli & { loop?: boolean }) => {
+    .action(async (cli: StagePageCli & { loop?: boolean; once?: boolean }) => {
+      if (cli.loop && cli.once) throw new UserError('demo: --loop and --once cannot both be given', 2);
       const { runDemo } = await import('../live/demo.js');
-      process.exitCode = await runDemo(io, { loop: cli.loop === true, page: cli });
+      // A player at a terminal can press q; a script cannot, so off a terminal the piece plays once.
+      const loop = cli.loop === true || (cli.once !== true && process.stdin.isTTY === true);
+      process.exitCode = await runDemo(io, { loop, page: cli });
     });
 
   program

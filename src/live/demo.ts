@@ -69,7 +69,8 @@ export async function runDemo(io: CommandIo, demo: DemoOptions = {}): Promise<nu
   const controls = new ControlMap([{ trigger: { kind: 'cc', controller: FLIP_CC, channel: undefined, threshold: 64 }, action: { kind: 'flip' }, latch: false }], speller);
   const decided: number[] = [];
   io.stdout.write('diesis demo: quarter-comma meantone at A4 = 415 Hz, spelled in D minor, into an MPE synth (virtual ports, no hardware).\n');
-  io.stdout.write('The pedal (CC 80) flips black keys for the F minor and D♭ major bars; the last chord is held by the sustain pedal.\n\n');
+  io.stdout.write('The pedal (CC 80) flips black keys for the F minor and D♭ major bars; the last chord is held by the sustain pedal.\n');
+  io.stdout.write(demo.loop ? 'The piece plays again and again: q or Ctrl-C stops it.\n\n' : '\n');
   const done = runUntilStopped(
     {
       inputs: [keyboard.name, pedals.name],

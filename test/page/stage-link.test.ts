@@ -77,6 +77,10 @@ describe('the stage page’s address in the terminal', () => {
     }
   });
 
+  it('demo refuses --loop with --once (exit 2)', async () => {
+    expect(await runCli('demo', '--loop', '--once')).toMatchObject({ code: 2, stderr: 'diesis: demo: --loop and --once cannot both be given\n' });
+  });
+
   it('play refuses a bad --page port in one line (exit 2)', async () => {
     const result = await runCli('play', '--in', 'x', '--out', 'y', '--page', 'eighty');
     expect(result.code).toBe(2);
