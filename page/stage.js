@@ -75,7 +75,7 @@ function render(s) {
   $('piece-count').textContent = s.piece.count > 1 ? `${s.piece.index + 1} / ${s.piece.count}` : '';
   document.title = `diesis · ${s.piece.title}`;
   $('tuning-name').textContent = s.tuning.name;
-  $('reference').textContent = s.tuning.reference;
+  $('reference').textContent = s.reference;
   $('bar').hidden = s.bar === null;
   $('bar').textContent = s.bar === null ? '' : `bar ${s.bar}`;
   $('strategy').textContent = s.strategy;

@@ -22,8 +22,6 @@ export interface StageTuning {
   /** The preset id (or file name) and its full name. */
   readonly id: string;
   readonly name: string;
-  /** `A4 = 415 Hz`. */
-  readonly reference: string;
   /** The tuning picture (SVG text), or undefined when none was drawn. Sent to the page only when it changes. */
   readonly picture?: string | undefined;
 }
@@ -70,6 +68,8 @@ export interface StageWarning {
 export interface StageState {
   readonly piece: StagePiece;
   readonly tuning: StageTuning;
+  /** The reference pitch, as `A4 = 415 Hz`. */
+  readonly reference: string;
   /** `follow`, `key`, `fixed`. */
   readonly strategy: string;
   /** The key in force in words (`D minor`, or the tonic alone when the mode is not known), or null. */

@@ -125,7 +125,8 @@ export function stageStateOf(sources: StageSources, tracker: StageTracker, time:
   }
   return {
     piece: sources.piece,
-    tuning: { id: sources.tuningId, name: sources.tuningName, reference: `${formatReference(reference, UNICODE).replace('=', ' = ')} Hz`, picture: sources.picture },
+    tuning: { id: sources.tuningId, name: sources.tuningName, picture: sources.picture },
+    reference: `${formatReference(reference, UNICODE).replace('=', ' = ')} Hz`,
     strategy: sources.strategy,
     key: keyInForce(speller),
     window: formatRange(speller.currentWindow(), UNICODE),

@@ -13,7 +13,8 @@ const lanAddress = Object.values(networkInterfaces())
 function state(title: string, picture = '<svg xmlns="http://www.w3.org/2000/svg"/>'): StageState {
   return {
     piece: { title, index: 0, count: 1, canPrevious: false, canNext: false },
-    tuning: { id: 'meantone-1-4', name: '1/4-comma meantone', reference: 'A4 = 415 Hz', picture },
+    tuning: { id: 'meantone-1-4', name: '1/4-comma meantone', picture },
+    reference: 'A4 = 415 Hz',
     strategy: 'key',
     key: 'D',
     window: 'E♭..G♯',

@@ -57,7 +57,8 @@ describe('the stage state', () => {
     expect(s.keys[8]!.cents).toBeCloseTo(5 * FIFTH_FROM_ET, 6);
     expect(s.keys[3]!.cents).toBeCloseTo(-6 * FIFTH_FROM_ET, 6);
     expect(s).toMatchObject({ strategy: 'key', key: 'tonic D', window: 'E♭..G♯', passing: false, bar: null });
-    expect(s.tuning).toMatchObject({ id: 'meantone-1-4', reference: 'A4 = 440 Hz' });
+    expect(s.tuning).toMatchObject({ id: 'meantone-1-4', name: '1/4-comma meantone' });
+    expect(s.reference).toBe('A4 = 440 Hz');
   });
 
   it('names the key follow believes it is in, with its mode', () => {
