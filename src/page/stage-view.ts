@@ -108,6 +108,19 @@ function keyInForce(speller: ControlledSpeller): string | null {
   return tonic ? `tonic ${formatPitchClass(tonic, UNICODE)}` : null;
 }
 
+/** Cents from 12-ET of a spelling in a tuning, remembered: the exact arithmetic is not redone 30 times a second. */
+const centsMemo = new WeakMap<Tuning, WeakMap<Reference, Map<number, number>>>();
+function centsFromEt(tuning: Tuning, reference: Reference, pitch: SpelledPitch): number {
+  let byReference = centsMemo.get(tuning);
+  if (!byReference) centsMemo.set(tuning, (byReference = new WeakMap()));
+  let memo = byReference.get(reference);
+  if (!memo) byReference.set(reference, (memo = new Map()));
+  const id = pitch.fifths * 64 + pitch.octave;
+  let cents = memo.get(id);
+  if (cents === undefined) memo.set(id, (cents = equalTemperedDeviation(tuning, reference, pitch)));
+  return cents;
+}
+
 /** The snapshot the page shows now. Reads only; `peek` asks the speller without letting it hear anything. */
 export function stageStateOf(sources: StageSources, tracker: StageTracker, time: number): StageState {
   const { router, speller, reference } = sources;
@@ -120,7 +133,7 @@ export function stageStateOf(sources: StageSources, tracker: StageTracker, time:
       chroma,
       black: BLACK.has(chroma),
       spelling: formatPitchClass(pitch, UNICODE),
-      cents: router.passing ? 0 : equalTemperedDeviation(tuning, reference, pitch),
+      cents: router.passing ? 0 : centsFromEt(tuning, reference, pitch),
     });
   }
   return {
