@@ -7,6 +7,7 @@ import { loadTuningPreset } from '../src/presets/tuning-presets.js';
 import { ControlledSpeller } from '../src/spelling/controlled.js';
 import { createStrategy } from '../src/spelling/strategy.js';
 import { A440 } from '../src/tuning/index.js';
+import WebSocket from 'ws';
 import { heading, percentile } from './timing.js';
 
 const quiet = { stdout: { write: () => undefined }, stderr: { write: () => undefined } };
@@ -43,8 +44,12 @@ export async function benchLatency(count = 2000): Promise<void> {
   const bridgeIn = virtualInput('bench bridge in');
   const bridgeArrivals: { wait: ((key: number) => void) | undefined } = { wait: undefined };
   virtualOutput('bench bridge out', (bytes) => (bytes[0]! & 0xf0) === 0x90 && bytes[2]! > 0 && bridgeArrivals.wait?.(bytes[1]!));
+  // The same bridge with the stage page open and a page connected (a WebSocket client taking every frame).
+  const pageIn = virtualInput('bench page in');
+  const pageArrivals: { wait: ((key: number) => void) | undefined } = { wait: undefined };
+  virtualOutput('bench page out', (bytes) => (bytes[0]! & 0xf0) === 0x90 && bytes[2]! > 0 && pageArrivals.wait?.(bytes[1]!));
   await enableMidi({ virtualOnly: true });
-  await until(() => !!findInput('bench plain in') && !!findOutput('bench plain out') && !!findInput('bench bridge in') && !!findOutput('bench bridge out'));
+  await until(() => ['plain', 'bridge', 'page'].every((n) => !!findInput(`bench ${n} in`) && !!findOutput(`bench ${n} out`)));
   const plainOut = findOutput('bench plain out')!;
   findInput('bench plain in')!.addListener('midimessage', ((e: { message: { rawData: Uint8Array } }) => plainOut.send(e.message.rawData)) as never);
   const speller = new ControlledSpeller(createStrategy({ strategy: 'follow' }));
@@ -52,14 +57,44 @@ export async function benchLatency(count = 2000): Promise<void> {
     { inputs: ['bench bridge in'], output: 'bench bridge out', engine: { tuning: loadTuningPreset('meantone-1-4').tuning, reference: A440 }, speller, strategy: 'follow', title: 'bench', quiet: true, virtualOnly: true },
     quiet,
   );
-  await timeNotes(plainIn.send, plainArrivals, 200); // warm up both paths
+  const tuning = loadTuningPreset('meantone-1-4');
+  const withPage = await startSession(
+    {
+      inputs: ['bench page in'],
+      output: 'bench page out',
+      engine: { tuning: tuning.tuning, reference: A440 },
+      speller: new ControlledSpeller(createStrategy({ strategy: 'follow' })),
+      strategy: 'follow',
+      title: 'bench',
+      quiet: true,
+      virtualOnly: true,
+      page: { port: 0, pieceTitle: 'bench', tuningId: tuning.id, tuningName: tuning.name },
+    },
+    quiet,
+  );
+  const pageUrl = new URL(withPage.page!.server.url);
+  const viewer = new WebSocket(`ws://${pageUrl.host}/live`, { origin: pageUrl.origin });
+  let frames = 0;
+  viewer.on('message', () => void frames++);
+  await new Promise((resolve) => viewer.once('open', resolve));
+  await timeNotes(plainIn.send, plainArrivals, 200); // warm up every path
   await timeNotes(bridgeIn.send, bridgeArrivals, 200);
+  await timeNotes(pageIn.send, pageArrivals, 200);
   const plain = stats(await timeNotes(plainIn.send, plainArrivals, count));
   const bridge = stats(await timeNotes(bridgeIn.send, bridgeArrivals, count));
+  const framesBefore = frames;
+  const pageStart = performance.now();
+  const paged = stats(await timeNotes(pageIn.send, pageArrivals, count));
+  const pageSeconds = (performance.now() - pageStart) / 1000;
   const row = (label: string, s: ReturnType<typeof stats>) => `${label.padEnd(12)} p50 ${s.p50.toFixed(1).padStart(6)} µs   p99 ${s.p99.toFixed(1).padStart(7)} µs   max ${s.max.toFixed(1).padStart(8)} µs\n`;
-  process.stdout.write(row('passthrough', plain) + row('diesis play', bridge));
+  process.stdout.write(row('passthrough', plain) + row('diesis play', bridge) + row('  + page', paged));
   process.stdout.write(`added at p50 ${(bridge.p50 - plain.p50).toFixed(1)} µs (ratio ${(bridge.p50 / plain.p50).toFixed(2)}), at p99 ${(bridge.p99 - plain.p99).toFixed(1)} µs (ratio ${(bridge.p99 / plain.p99).toFixed(2)})\n`);
+  process.stdout.write(
+    `with the stage page connected (${((frames - framesBefore) / pageSeconds).toFixed(1)} frames/s to it): added at p50 ${(paged.p50 - plain.p50).toFixed(1)} µs, at p99 ${(paged.p99 - plain.p99).toFixed(1)} µs; the page itself adds ${(paged.p50 - bridge.p50).toFixed(1)} µs at p50, ${(paged.p99 - bridge.p99).toFixed(1)} µs at p99\n`,
+  );
+  viewer.close();
   session.stop('bench over');
+  withPage.stop('bench over');
   WebMidi.removeListener();
 }
 

@@ -74,8 +74,18 @@ export function renderPreview(messages: ReadonlyArray<{ time: number; data: read
   return { sampleRate: rate, channels: [out] };
 }
 
+/** How long each dyad of `renderDyads` sounds and the silence after it, in seconds. */
+export const DYAD_SECONDS = 2.5;
+export const DYAD_GAP_SECONDS = 0.4;
+
+/** When each of `count` dyads starts in `renderDyads`' audio, in seconds (whole samples, as rendered). */
+export function dyadStartTimes(count: number, sampleRate: number, seconds = DYAD_SECONDS, gap = DYAD_GAP_SECONDS): number[] {
+  const per = Math.round((seconds + gap) * sampleRate);
+  return Array.from({ length: count }, (_, i) => (i * per) / sampleRate);
+}
+
 /** Sustained dyads, one after another, to hear an interval's beats: `pairs` of frequencies, `seconds` each. */
-export function renderDyads(pairs: ReadonlyArray<readonly [number, number]>, sampleRate: number, seconds = 2.5, gap = 0.4): Audio {
+export function renderDyads(pairs: ReadonlyArray<readonly [number, number]>, sampleRate: number, seconds = DYAD_SECONDS, gap = DYAD_GAP_SECONDS): Audio {
   const shape = SHAPES.organ;
   const per = Math.round((seconds + gap) * sampleRate);
   const out = new Float32Array(per * pairs.length);

@@ -17,10 +17,12 @@ export function chartText(chart: Chart, options: ChartTextOptions): string {
   const names: NameStyle = { accidentals: ascii ? 'ascii' : 'unicode' };
   const sign = (n: number, digits: number): string => signed(n, digits, ascii);
   const dash = ascii ? '-' : '–';
+  /** A figure with a minus sign only when negative: the same minus sign as the signed columns. */
+  const unsigned = (n: number, digits: number): string => (sign(n, digits).startsWith('+') || sign(n, digits).startsWith(' ') ? Math.abs(n).toFixed(digits) : sign(n, digits));
   const out: string[] = [];
   out.push(style.bold(options.title));
   out.push(style.dim(options.subtitle));
-  out.push(style.dim(`reference ${formatReference(chart.reference)} Hz · origin ${formatPitchClass(chart.tuning.origin, names)} · octave ${chart.octave}`));
+  out.push(style.dim(`reference ${formatReference(chart.reference, names)} Hz · origin ${formatPitchClass(chart.tuning.origin, names)} · octave ${chart.octave}`));
   out.push('');
   out.push(
     renderTable(
@@ -34,7 +36,7 @@ export function chartText(chart: Chart, options: ChartTextOptions): string {
       chart.notes.map((n) => [
         formatSpelledPitch(n.pitch, names),
         sign(n.fifths, 0).trim(),
-        n.cents.toFixed(3),
+        unsigned(n.cents, 3),
         n.hz.toFixed(3),
         sign(n.etDeviation, 3),
       ]),
@@ -59,7 +61,7 @@ export function chartText(chart: Chart, options: ChartTextOptions): string {
       renderTable(
         [
           { header: 'interval', align: 'left' },
-          { header: '', align: 'left' },
+          { header: 'quality', align: 'left' },
           { header: 'cents', align: 'right' },
           { header: 'pure', align: 'right' },
           { header: 'from pure', align: 'right' },
@@ -70,7 +72,7 @@ export function chartText(chart: Chart, options: ChartTextOptions): string {
           const cells = [
             `${formatSpelledPitch(i.lower, names)}${dash}${formatSpelledPitch(i.upper, names)}`,
             i.quality,
-            i.cents.toFixed(3),
+            unsigned(i.cents, 3),
             `${i.pure.p}/${i.pure.q}`,
             sign(i.deviation, 3),
             i.beats.toFixed(2),

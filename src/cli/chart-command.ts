@@ -4,7 +4,9 @@ import { chartCsv, chartText } from '../chart/chart-text.js';
 import { parseFifthsRange } from '../pitch/index.js';
 import { loadTuningPreset } from '../presets/tuning-presets.js';
 import { A440, DEFAULT_WOLF_LIMITS, frequency, parseReference } from '../tuning/index.js';
-import { renderDyads } from '../audio/preview.js';
+import { dyadStartTimes, renderDyads } from '../audio/preview.js';
+import { chartSvg } from '../chart/chart-svg.js';
+import { formatSpelledPitch } from '../pitch/index.js';
 import { writeWav } from '../audio/wav.js';
 import { writeOutputFile } from '../util/files.js';
 import { UserError } from '../util/errors.js';
@@ -23,6 +25,7 @@ interface ChartOptions {
   wolfFifth: number;
   wolfThird: number;
   listen?: string;
+  svg?: string;
 }
 
 export function registerChart(program: Command, io: CommandIo): void {
@@ -39,7 +42,8 @@ export function registerChart(program: Command, io: CommandIo): void {
     .option('--ascii', 'write # and b instead of ♯ and ♭')
     .option('--wolf-fifth <cents>', 'a fifth further than this from 3/2 is a wolf', numberOption('--wolf-fifth', 0, 1200), DEFAULT_WOLF_LIMITS.fifth)
     .option('--wolf-third <cents>', 'a third further than this from 5/4 is a wolf', numberOption('--wolf-third', 0, 1200), DEFAULT_WOLF_LIMITS.third)
-    .option('--listen <file.wav>', 'also write the chart’s fifths and thirds as sustained dyads, to hear the beats and the wolves')
+    .option('--listen <file.wav>', 'also write the chart’s fifths and thirds as sustained dyads, to hear the beats and the wolves (prints a cue list)')
+    .option('--svg <file.svg>', 'also draw the chart as a picture: the line of fifths, cents from 12-ET, fifths and thirds from pure, gaps and wolves')
     .action((tuningArg: string, options: ChartOptions) => {
       const preset = loadTuningPreset(tuningArg);
       const reference = options.ref !== undefined ? parseReference(options.ref, '--ref') : (preset.reference ?? A440);
@@ -54,6 +58,9 @@ export function registerChart(program: Command, io: CommandIo): void {
       if (options.listen) {
         const pairs = chart.intervals.map((i) => [frequency(preset.tuning, reference, i.lower), frequency(preset.tuning, reference, i.upper)] as const);
         writeOutputFile(options.listen, writeWav(renderDyads(pairs, 44_100), 16));
+      }
+      if (options.svg) {
+        writeOutputFile(options.svg, new TextEncoder().encode(chartSvg(chart, { title: `${preset.name} (${preset.kind})`, subtitle: preset.source })));
       }
       if (options.json) {
         const meta = { id: preset.id, name: preset.name, kind: preset.kind, source: preset.source };
@@ -73,5 +80,24 @@ export function registerChart(program: Command, io: CommandIo): void {
           }),
         );
       }
+      if (options.listen) {
+        // The cue list goes with the chart on stdout, or to stderr when stdout carries JSON or CSV.
+        const cues = cueList(chart.intervals, options.ascii === true);
+        (options.json || options.csv !== undefined ? io.stderr : io.stdout).write(`\n${options.listen}: ${chart.intervals.length} dyads\n${cues}`);
+      }
     });
+}
+
+/** Where each dyad of `--listen` starts (m:ss.s) and what it is, so a wolf can be found without counting. */
+export function cueList(intervals: ReturnType<typeof buildChart>['intervals'], ascii: boolean): string {
+  const style = { accidentals: ascii ? 'ascii' : 'unicode' } as const;
+  const starts = dyadStartTimes(intervals.length, 44_100);
+  return intervals
+    .map((i, k) => {
+      const t = starts[k] ?? 0;
+      const time = `${Math.floor(t / 60)}:${(t % 60).toFixed(1).padStart(4, '0')}`;
+      const name = `${formatSpelledPitch(i.lower, style)}${ascii ? '-' : '–'}${formatSpelledPitch(i.upper, style)}`;
+      return `${time}  ${name.padEnd(9)} ${i.quality}${i.wolf ? '  wolf' : ''}\n`;
+    })
+    .join('');
 }

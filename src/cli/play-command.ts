@@ -1,3 +1,4 @@
+import { basename, extname } from 'node:path';
 import type { Command } from 'commander';
 import { disableMidi, enableMidi, listPorts } from '../io/midi-system.js';
 import { runUntilStopped } from '../live/run.js';
@@ -9,9 +10,10 @@ import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './eng
 import type { CommandIo } from '../util/io.js';
 import { describeSetup } from './render-command.js';
 import { renderTable } from '../text/table.js';
-import { numberOption } from './options.js';
+import { integerOption, numberOption } from './options.js';
+import { stagePageRequest, type StagePageCli } from '../page/stage-cli.js';
 
-interface PlayOptions extends EngineCliOptions {
+interface PlayOptions extends EngineCliOptions, StagePageCli {
   in?: string[];
   out?: string;
   wait?: boolean;
@@ -33,14 +35,29 @@ export function registerPlay(program: Command, io: CommandIo): void {
     .option('--log <file>', 'append every decision to a JSON Lines file')
     .option('--record <file.mid>', 'write the take (input and output tracks) as a Standard MIDI File at the end')
     .option('--ascii', 'write # and b instead of ♯ and ♭')
-    .option('--stop-after <seconds>', 'stop by itself after this long (for scripted runs)', numberOption('--stop-after', 0, 86_400));
+    .option('--stop-after <seconds>', 'stop by itself after this long (for scripted runs)', numberOption('--stop-after', 0, 86_400))
+    .option('--page [port]', 'serve the stage page for a tablet on the music stand (default port 8421; this computer only)', integerOption('--page', 0, 65_535))
+    .option('--page-host <address>', 'open the stage page to the network on this address (0.0.0.0: every one); a token is then required');
   addEngineOptions(command).action(async (cli: PlayOptions) => {
     const resolved = resolveEngineCli(cli);
     const inputs = cli.in ?? [];
     if (inputs.length === 0 || !cli.out) throw new UserError('play needs --in PORT and --out PORT (run "diesis ports" to list them)', 2);
     const { engine, title } = sessionTitle(resolved);
     const code = await runUntilStopped(
-      { inputs, output: cli.out, engine, speller: resolved.speller, strategy: resolved.strategy, title, wait: cli.wait, quiet: cli.quiet, logFile: cli.log, recordFile: cli.record, ascii: cli.ascii },
+      {
+        inputs,
+        output: cli.out,
+        engine,
+        speller: resolved.speller,
+        strategy: resolved.strategy,
+        title,
+        wait: cli.wait,
+        quiet: cli.quiet,
+        logFile: cli.log,
+        recordFile: cli.record,
+        ascii: cli.ascii,
+        page: stagePageRequest(cli, { pieceTitle: cli.setup ? basename(cli.setup, extname(cli.setup)) : 'diesis', tuningId: resolved.preset.id, tuningName: resolved.preset.name }),
+      },
       io,
       cli.stopAfter,
     );
@@ -50,10 +67,18 @@ export function registerPlay(program: Command, io: CommandIo): void {
 
   program
     .command('demo')
-    .description('the live bridge on a built-in performance, through virtual ports: no hardware needed')
-    .action(async () => {
+    .description('the live bridge on a built-in performance, through virtual ports: no hardware needed; serves the stage page')
+    .option('--loop', 'play the piece again and again until q or Ctrl-C, to watch the stage page (the default on a terminal)')
+    .option('--once', 'play the piece once and end (the default off a terminal)')
+    .option('--page [port]', 'the stage page’s port (default 8421, or any free one when that is taken)', integerOption('--page', 0, 65_535))
+    .option('--page-host <address>', 'open the stage page to the network on this address; a token is then required')
+    .option('--no-page', 'do not serve the stage page')
+    .action(async (cli: StagePageCli & { loop?: boolean; once?: boolean }) => {
+      if (cli.loop && cli.once) throw new UserError('demo: --loop and --once cannot both be given', 2);
       const { runDemo } = await import('../live/demo.js');
-      process.exitCode = await runDemo(io);
+      // A player at a terminal can press q; a script cannot, so off a terminal the piece plays once.
+      const loop = cli.loop === true || (cli.once !== true && process.stdin.isTTY === true);
+      process.exitCode = await runDemo(io, { loop, page: cli });
     });
 
   program

@@ -10,6 +10,7 @@ import { parseReference } from '../tuning/index.js';
 import type { CommandIo } from '../util/io.js';
 import { virtualInput, virtualOutput } from '../io/virtual-ports.js';
 import { runUntilStopped } from './run.js';
+import { stagePageRequest, type StagePageCli } from '../page/stage-cli.js';
 
 /** One step of the demo: at `beat`, the keyboard plays `chord` (held `hold` beats), or the pedal moves. */
 type Step = { beat: number; chord: string[]; hold?: number } | { beat: number; pedal: 'flip' | 'sustain'; down: boolean };
@@ -35,6 +36,8 @@ export const DEMO_PIECE: readonly Step[] = [
 ];
 
 const BEAT_MS = 500;
+/** The piece from its first beat to the end of its last chord's ring. */
+const PIECE_MS = (Math.max(...DEMO_PIECE.map((s) => s.beat)) + 1.5) * BEAT_MS;
 const FLIP_CC = 80;
 
 /**
@@ -44,7 +47,14 @@ const FLIP_CC = 80;
  * prints each note's spelling, cents, frequency and channel, checks what the synth sounded, and
  * ends by itself.
  */
-export async function runDemo(io: CommandIo): Promise<number> {
+export interface DemoOptions {
+  /** Play the piece again and again until stopped. */
+  readonly loop?: boolean | undefined;
+  /** The stage page (served unless `--no-page`). */
+  readonly page?: StagePageCli | undefined;
+}
+
+export async function runDemo(io: CommandIo, demo: DemoOptions = {}): Promise<number> {
   const keyboard = virtualInput('diesis demo keyboard');
   const pedals = virtualInput('diesis demo pedals');
   const synth = new SynthModel(440, 400);
@@ -59,7 +69,8 @@ export async function runDemo(io: CommandIo): Promise<number> {
   const controls = new ControlMap([{ trigger: { kind: 'cc', controller: FLIP_CC, channel: undefined, threshold: 64 }, action: { name: 'flip' }, latch: false }], speller);
   const decided: number[] = [];
   io.stdout.write('diesis demo: quarter-comma meantone at A4 = 415 Hz, spelled in D minor, into an MPE synth (virtual ports, no hardware).\n');
-  io.stdout.write('The pedal (CC 80) flips black keys for the F minor and D♭ major bars; the last chord is held by the sustain pedal.\n\n');
+  io.stdout.write('The pedal (CC 80) flips black keys for the F minor and D♭ major bars; the last chord is held by the sustain pedal.\n');
+  io.stdout.write(demo.loop ? 'The piece plays again and again: q or Ctrl-C stops it.\n\n' : '\n');
   const done = runUntilStopped(
     {
       inputs: [keyboard.name, pedals.name],
@@ -71,23 +82,35 @@ export async function runDemo(io: CommandIo): Promise<number> {
       title: 'diesis demo',
       lines: true,
       virtualOnly: true,
+      page: stagePageRequest(demo.page ?? {}, { pieceTitle: 'diesis demo', tuningId: tuning.id, tuningName: tuning.name }, true),
     },
     io,
-    ((Math.max(...DEMO_PIECE.map((s) => s.beat)) + 1.5) * BEAT_MS) / 1000,
+    demo.loop ? undefined : PIECE_MS / 1000,
   );
-  // Play the piece into the virtual keyboard and pedals.
-  const start = performance.now() + 100;
-  for (const step of DEMO_PIECE) {
-    setTimeout(() => {
-      if ('chord' in step) {
-        const keys = step.chord.map((n) => keyOf(parseSpelledPitch(n)));
-        for (const k of keys) keyboard.send([0x90, k, 80]);
-        setTimeout(() => keys.forEach((k) => keyboard.send([0x80, k, 0])), (step.hold ?? 0.9) * BEAT_MS);
-      } else if (step.pedal === 'flip') pedals.send([0xb0, FLIP_CC, step.down ? 127 : 0]);
-      else keyboard.send([0xb0, 64, step.down ? 127 : 0]);
-    }, start - performance.now() + step.beat * BEAT_MS);
-  }
+  // Play the piece into the virtual keyboard and pedals (again and again with --loop, until stopped).
+  let over = false;
+  const timers: NodeJS.Timeout[] = [];
+  const playFrom = (start: number): void => {
+    if (over) return;
+    for (const step of DEMO_PIECE) {
+      timers.push(
+        setTimeout(() => {
+          if (over) return;
+          if ('chord' in step) {
+            const keys = step.chord.map((n) => keyOf(parseSpelledPitch(n)));
+            for (const k of keys) keyboard.send([0x90, k, 80]);
+            timers.push(setTimeout(() => keys.forEach((k) => keyboard.send([0x80, k, 0])), (step.hold ?? 0.9) * BEAT_MS));
+          } else if (step.pedal === 'flip') pedals.send([0xb0, FLIP_CC, step.down ? 127 : 0]);
+          else keyboard.send([0xb0, 64, step.down ? 127 : 0]);
+        }, start - performance.now() + step.beat * BEAT_MS),
+      );
+    }
+    if (demo.loop) timers.push(setTimeout(() => playFrom(start + PIECE_MS), start + PIECE_MS - performance.now() - 50));
+  };
+  playFrom(performance.now() + 100);
   const code = await done;
+  over = true;
+  for (const t of timers) clearTimeout(t);
   // Each note the synth started, against the frequency the engine decided for it (in order).
   const worst = heard.reduce((w, hz, i) => Math.max(w, Math.abs(1200 * Math.log2(hz / (decided[i] ?? NaN)))), 0);
   const left = synth.active().length;

@@ -9,9 +9,10 @@ import { enableMidi } from '../io/midi-system.js';
 import type { CommandIo } from '../util/io.js';
 import { makeStyle, wantsColour } from '../text/style.js';
 import { writeOutputFile } from '../util/files.js';
-import { Bridge } from './bridge.js';
+import { Bridge, type BridgeNotice } from './bridge.js';
 import { LiveView } from './display.js';
 import { Recorder } from './recorder.js';
+import { openStagePage, type StageLink, type StagePageRequest } from '../page/stage-link.js';
 
 export interface SessionOptions {
   readonly inputs: readonly string[];
@@ -31,11 +32,14 @@ export interface SessionOptions {
   readonly virtualOnly?: boolean | undefined;
   /** Also hears every engine decision (the demo checks what the synth sounded against them). */
   readonly onEvent?: ((event: RouterEvent) => void) | undefined;
+  /** Also serve the stage page (src/page). */
+  readonly page?: StagePageRequest | undefined;
 }
 
 /** A running performance: `stop` ends every note, then closes the log and writes the take. */
 export interface Session {
   readonly bridge: Bridge;
+  readonly page: StageLink | undefined;
   panic(): void;
   stop(reason: string): void;
 }
@@ -76,6 +80,8 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
   const screen = io.stdout.isTTY === true && !options.quiet && !options.lines;
   const style = makeStyle(wantsColour(io.stdout));
   const recorder = options.recordFile ? new Recorder() : undefined;
+  const page = options.page ? await openStagePage(options.page) : undefined;
+  if (page && !screen) io.stderr.write(`${page.banner}\n`);
   let bridge: Bridge | undefined;
   let view: LiveView | undefined;
   const lines = !screen && !options.quiet;
@@ -87,6 +93,7 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
     speller: options.speller,
     observer: (e) => {
       options.onEvent?.(e);
+      page?.event(e);
       log?.write(logLine(e));
       if (screen) view?.event(e);
       else if (lines) print(view?.line(e));
@@ -97,25 +104,37 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
       tally,
       speller: options.speller,
       strategy: options.strategy,
-      title: options.title,
+      title: page && screen ? `${options.title}\n${page.banner}` : options.title,
       lostMessages: () => bridge?.lostMessages ?? 0,
       ports: () => bridge?.portStates() ?? { inputs: options.inputs.map((name) => ({ name, connected: false })), output: { name: options.output, connected: false } },
     },
     style,
     { accidentals: options.ascii ? 'ascii' : 'unicode' },
   );
-  bridge = Bridge.open({ inputs: options.inputs, output: options.output, router, recorder, onNotice: (n) => print(view?.notice(n)) });
+  const onNotice = (n: BridgeNotice): void => {
+    page?.notice(n);
+    print(view?.notice(n));
+  };
+  try {
+    bridge = Bridge.open({ inputs: options.inputs, output: options.output, router, recorder, onNotice });
+  } catch (error) {
+    await page?.stop();
+    throw error;
+  }
   const redraw = screen ? setInterval(() => io.stdout.write(`\u001b[H\u001b[2J${view?.frame() ?? ''}\n`), 100) : undefined;
   const opened = bridge;
+  page?.attach({ router, speller: options.speller, tuning: options.engine.tuning, reference: options.engine.reference, strategy: options.strategy, send: (m) => opened.send(m), clock: () => performance.now(), synthConnected: () => opened.outputConnected });
   let stopped = false;
   return {
     bridge: opened,
+    page,
     panic: () => opened.panic('panic key'),
     stop(reason) {
       if (stopped) return;
       stopped = true;
       opened.stop(reason);
       if (redraw) clearInterval(redraw);
+      void page?.stop();
       log?.end();
       if (recorder && options.recordFile) {
         try {

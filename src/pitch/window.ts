@@ -35,7 +35,7 @@ export function parseFifthsRange(text: string, what = 'range'): FifthsRange {
 export function parseWindow(text: string, what = 'window'): KeyboardWindow {
   const range = parseFifthsRange(text, what);
   const size = range.highest - range.lowest + 1;
-  if (size !== 12) throw new UserError(`${what} "${text}" spans ${size} fifths; a keyboard window spans exactly 12, as in Eb..G#`);
+  if (size !== 12) throw new UserError(`${what} "${text}" holds ${size} spellings (${size - 1} ${size === 2 ? 'fifth' : 'fifths'}); a keyboard window holds exactly 12, as in Eb..G#`);
   return keyboardWindow(range.lowest);
 }
 

@@ -1,5 +1,6 @@
 import { DEFAULT_WINDOW, type KeyboardWindow } from '../pitch/index.js';
-import type { ControlMap } from '../spelling/control-map.js';
+import { ControlMap } from '../spelling/control-map.js';
+import { ControlledSpeller } from '../spelling/controlled.js';
 import { fixedSpeller, type Speller } from '../spelling/speller.js';
 import type { Reference, Tuning } from '../tuning/index.js';
 import type { GatherSetting } from './chord-gatherer.js';
@@ -55,7 +56,8 @@ export function resolveEngineOptions(input: EngineOptionsInput): EngineOptions {
     sampleLayout: input.sampleLayout,
     speller: input.speller ?? fixedSpeller(window),
     window: input.speller ? input.speller.currentWindow() : window,
-    controls: input.controls,
+    // A controlled speller always has a control map, so pages and programmes can act as pedals do.
+    controls: input.controls ?? (input.speller instanceof ControlledSpeller ? new ControlMap([], input.speller) : undefined),
     gather: input.gather,
     observer: input.observer,
   };

@@ -1,5 +1,5 @@
 import Fraction from 'fraction.js';
-import { formatSpelledPitch, keyOf, parseSpelledPitch, type SpelledPitch } from '../pitch/index.js';
+import { formatSpelledPitch, keyOf, parseSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
 import { UserError } from '../util/errors.js';
 import { divide, toFraction, value, type PitchRatio } from './ratio.js';
 import { pitchSize, type Tuning } from './tuning.js';
@@ -36,8 +36,8 @@ export function parseReference(text: string, what = 'reference'): Reference {
   return reference(pitch, hzText);
 }
 
-export function formatReference(ref: Reference): string {
-  return `${formatSpelledPitch(ref.pitch)}=${ref.hz.toString()}`;
+export function formatReference(ref: Reference, style?: NameStyle): string {
+  return `${formatSpelledPitch(ref.pitch, style)}=${ref.hz.toString()}`;
 }
 
 /** The exact size of `p` above the reference note. */

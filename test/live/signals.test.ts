@@ -54,12 +54,15 @@ describe('signals and crashes end the session with a panic first', () => {
 
 describe('npm start', () => {
   it('runs the demo on a machine without MIDI hardware and exits 0', async () => {
-    const { stdout, exitCode } = await new Promise<{ stdout: string; exitCode: number | null }>((resolve) => {
+    const { stdout, stderr, exitCode } = await new Promise<{ stdout: string; stderr: string; exitCode: number | null }>((resolve) => {
       const child = spawn(process.execPath, [join(root, 'bin/diesis.js'), 'demo'], { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
       let text = '';
+      let errors = '';
       child.stdout.on('data', (c: Buffer) => (text += c.toString()));
-      child.on('exit', (exitCode) => resolve({ stdout: text, exitCode }));
+      child.stderr.on('data', (c: Buffer) => (errors += c.toString()));
+      child.on('exit', (exitCode) => resolve({ stdout: text, stderr: errors, exitCode }));
     });
+    expect(stderr).toMatch(/^stage page: http:\/\/127\.0\.0\.1:\d+\/$/mu); // it serves the stage page and says where
     expect(exitCode).toBe(0);
     expect(stdout).toMatch(/A♭4\s+key\s+68/u); // the flipped bar
     expect(stdout).toMatch(/G♯4\s+key\s+68/u);

@@ -42,7 +42,7 @@ describe('keys and windows', () => {
   });
 
   it('refuses windows that are not 12 fifths wide or run backwards', () => {
-    expect(() => parseWindow('Eb..A')).toThrow(/spans 7 fifths; a keyboard window spans exactly 12/u);
+    expect(() => parseWindow('Eb..A')).toThrow(/holds 7 spellings \(6 fifths\); a keyboard window holds exactly 12/u);
     expect(() => parseFifthsRange('G#..Eb')).toThrow(/runs flatward/u);
     expect(() => parseFifthsRange('Eb-G#')).toThrow(/joined by "\.\."/u);
     expect(parseFifthsRange('Gb..A#')).toEqual({ lowest: -6, highest: 10 });
