@@ -89,6 +89,7 @@ export function generatePerformance(options: { seed: number; events: number; set
   const streams = Array.from({ length: sources }, () => new ReferenceStream());
   const held = Array.from({ length: sources }, () => new Map<number, number>()); // channel·128 + key → channel
   const unplugged = new Set<number>();
+  const plugAt = new Map<number, number>();
   const steps: FuzzStep[] = [];
   let time = 0;
   const realTime = flags.foundDefects ? REAL_TIME : REAL_TIME_NO_SENSING;
@@ -157,16 +158,24 @@ export function generatePerformance(options: { seed: number; events: number; set
 
   for (let n = 0; n < options.events; n++) {
     time += rng.chance(0.003) ? rng.int(1000, 5000) : rng.chance(0.3) ? 0 : rng.int(1, 40);
+    // A device comes back a few events after it was unplugged.
+    const back = [...plugAt].find(([, at]) => at <= n);
+    if (back) {
+      plugAt.delete(back[0]);
+      unplugged.delete(back[0]);
+      steps.push({ time, source: back[0], hotplug: 'plug' });
+      continue;
+    }
     if (options.hotplug && rng.chance(0.004)) {
       const source = rng.int(0, sources - 1);
-      const kind = unplugged.has(source) ? 'plug' : 'unplug';
-      if (kind === 'unplug') {
+      if (!unplugged.has(source)) {
         unplugged.add(source);
+        plugAt.set(source, n + rng.int(3, 60));
         streams[source]!.cut();
         held[source]!.clear();
-      } else unplugged.delete(source);
-      steps.push({ time, source, hotplug: kind });
-      continue;
+        steps.push({ time, source, hotplug: 'unplug' });
+        continue;
+      }
     }
     const source = sources > 1 && rng.chance(0.15) ? 1 : 0;
     if (unplugged.has(source)) continue;
