@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { disableMidi, enableMidi } from '../../src/io/midi-system.js';
-import { virtualInput, virtualOutput } from '../../src/io/virtual-ports.js';
+import { packetsForJzz, virtualInput, virtualOutput } from '../../src/io/virtual-ports.js';
 import { Bridge } from '../../src/live/bridge.js';
 import { LIVE_SYSEX_TIME_LIMIT_MS } from '../../src/midi/input-stream.js';
 import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
@@ -55,6 +55,14 @@ async function stage() {
   const noteOns = () => received.filter((m) => (m[0]! & 0xf0) === 0x90 && m[2]! > 0).length;
   return { keyboard, pedals, synth, received, router, bridge, noteOns };
 }
+
+describe('a virtual device', () => {
+  it("cuts its bytes only where jzz's message type would refuse a packet, so the stream arrives unchanged", () => {
+    expect(packetsForJzz([0x90, 0xf8, 60, 100, 0xa0, 0x90, 1])).toEqual([[0x90], [0xf8, 60, 100, 0xa0, 0x90, 1]]); // jzz checks the second byte of a packet only
+    expect(packetsForJzz([0x90, 60, 100, 0xf8, 62, 0])).toEqual([[0x90, 60, 100, 0xf8, 62, 0]]);
+    expect(packetsForJzz([0xb0, 0xfe, 7])).toEqual([[0xb0, 0xfe, 7]]); // only note and poly-pressure statuses are checked by jzz
+  });
+});
 
 describe('whole messages from any byte stream, through the live bridge on virtual ports', () => {
   it('running status: note-ons and note-offs (velocity 0) without repeated status bytes', async () => {
