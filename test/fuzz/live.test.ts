@@ -18,7 +18,7 @@ describe('fuzz: random performances through the live bridge on virtual ports, wi
       const seed = 3000 + i;
       const steps = generatePerformance({ seed, events: EVENTS, setup, flags: FLAGS, sources: 2, hotplug: true });
       expect(steps.filter((s) => 'hotplug' in s && s.hotplug === 'unplug').length).toBeGreaterThan(0);
-      const report = await runLiveFuzz(setup, seed, steps, FLAGS);
+      const report = await runLiveFuzz(setup, seed, steps);
       expect(report.violations).toEqual([]);
       expect(report.counts.inputNoteOns).toBeGreaterThan(EVENTS / 10);
       expect(report.inputDrops).toBeGreaterThan(0); // garbage arrived, and was dropped below the engine

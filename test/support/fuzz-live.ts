@@ -2,7 +2,7 @@ import { enableMidi } from '../../src/io/midi-system.js';
 import { virtualInput, virtualOutput } from '../../src/io/virtual-ports.js';
 import { Bridge } from '../../src/live/bridge.js';
 import { createRouter } from '../../src/router/setup.js';
-import { type FuzzFlags, type FuzzReport, type FuzzSetup, type FuzzStep, fuzzEngine, letGo, observe, RELEASE_GUARD_MS } from './fuzz.js';
+import { type FuzzReport, type FuzzSetup, type FuzzStep, fuzzEngine, letGo, observe, RELEASE_GUARD_MS } from './fuzz.js';
 import { InvariantChecker } from './invariants.js';
 import { ReferenceStream } from './reference-stream.js';
 
@@ -22,10 +22,9 @@ let runs = 0;
  * Plays steps through the live bridge on in-process virtual ports (a keyboard and a pedal box in,
  * the reference synth out), with unplugging and plugging back, checked by the invariants. The
  * bridge's clock is the performance's own time, so gaps and timeouts happen as written without
- * waiting for them. With `knownDefects` off, the pedals are lifted before a device is unplugged
- * (issue 11, item 1).
+ * waiting for them.
  */
-export async function runLiveFuzz(setup: FuzzSetup, seed: number, steps: readonly FuzzStep[], flags: FuzzFlags): Promise<FuzzReport & { readonly inputDrops: number }> {
+export async function runLiveFuzz(setup: FuzzSetup, seed: number, steps: readonly FuzzStep[]): Promise<FuzzReport & { readonly inputDrops: number }> {
   await enableMidi({ virtualOnly: true });
   const id = ++runs;
   let now = 0;
@@ -39,7 +38,7 @@ export async function runLiveFuzz(setup: FuzzSetup, seed: number, steps: readonl
   const bridge = Bridge.open({ inputs: names, output: synthPort.name, router, clock: () => now });
   const streams = devices.map(() => new ReferenceStream());
   const send = (source: number, bytes: number[]): void => {
-    checker.input(streams[source]!.feed(bytes));
+    checker.input(streams[source]!.feed(bytes), source);
     devices[source]!.send(bytes);
   };
   try {
@@ -49,11 +48,11 @@ export async function runLiveFuzz(setup: FuzzSetup, seed: number, steps: readonl
       if ('hotplug' in step) {
         const device = devices[step.source]!;
         if (step.hotplug === 'unplug') {
-          if (!flags.knownDefects && (router.sustainDown || router.sostenutoDown)) send(step.source, [0xb0, 64, 0, 66, 0]);
           checker.input([]);
           device.unplug();
           await until(() => bridge.inputsConnected[step.source] === false, 'the unplug');
           streams[step.source]!.cut();
+          checker.unplugged(step.source);
         } else {
           device.plug();
           await until(() => bridge.inputsConnected[step.source] === true, 'the plug');

@@ -45,7 +45,7 @@ export interface FuzzFlags {
    * forwarded, it centres every member's tuning bend until they are sent again); in `mts-note`
    * sustain and sostenuto pedal downs (item 4: a steal may take a slot a pedal still holds) and
    * note-ons on keys 0 and 1 (item 7: below MTS's lowest frequency, clamped silently); and live,
-   * unplugging while a pedal is down (item 1).
+   * unplugging while a pedal is down (item 1: the device lifts its pedals first).
    */
   readonly knownDefects: boolean;
   /**
@@ -169,6 +169,12 @@ export function generatePerformance(options: { seed: number; events: number; set
     if (options.hotplug && rng.chance(0.004)) {
       const source = rng.int(0, sources - 1);
       if (!unplugged.has(source)) {
+        // Known defect (item 1): the engine's pedals outlive the device; lift them before it goes.
+        if (!flags.knownDefects) {
+          const lift = [0xb0, 64, 0, 66, 0];
+          streams[source]!.feed(lift);
+          steps.push({ time, source, bytes: lift });
+        }
         unplugged.add(source);
         plugAt.set(source, n + rng.int(3, 60));
         streams[source]!.cut();
@@ -255,7 +261,8 @@ export const RELEASE_GUARD_MS = 400;
 
 /** What the checker needs to hear of the engine's decisions: notes it could not place, and panics. */
 export function observe(checker: InvariantChecker, e: RouterEvent): void {
-  if (e.type === 'note-dropped') checker.noteDropped();
+  if (e.type === 'note') checker.noteStarted(e.source);
+  else if (e.type === 'note-dropped') checker.noteDropped();
   else if (e.type === 'panic') checker.panicking();
 }
 
@@ -283,15 +290,16 @@ export function runEngineFuzz(setup: FuzzSetup, seed: number, steps: readonly Fu
       if (step.hotplug === 'unplug') {
         streams[step.source]!.cut();
         feed(router.releaseSource(time, step.source));
+        checker.unplugged(step.source);
       }
       continue;
     }
-    checker.input(streams[step.source]!.feed(step.bytes));
+    checker.input(streams[step.source]!.feed(step.bytes), step.source);
     feed(router.process(time, step.bytes, step.source));
   }
   for (let source = 0; source < sources; source++) {
     const bytes = letGo();
-    checker.input(streams[source]!.feed(bytes));
+    checker.input(streams[source]!.feed(bytes), source);
     feed(router.process(time, bytes, source));
   }
   const counts = checker.finish(time);

@@ -16,7 +16,10 @@ import { isNoteOn } from './reference-stream.js';
  * - one output note-on per input note-on, less the notes the engine reports it could not place;
  * - the synth never receives a second note-on for a key it already holds on that channel;
  * - at the end, once the player has let go of every key and pedal, nothing is held or
- *   sustained, and after the release time nothing rings.
+ *   sustained, and after the release time nothing rings;
+ * - a device that disappears takes its notes and pedals with it (README, hot-plug): no note it
+ *   started is still held or sustained, and if its pedal was down, no note is left sustained
+ *   unless another device's pedal is down too.
  */
 export interface InvariantOptions {
   readonly mode: 'bend' | 'mts-note' | 'mts-octave' | 'pass';
@@ -38,13 +41,15 @@ export interface InvariantCounts {
   doubleNoteOns: number;
   /** Held or sustained at the end, after the player let go of everything. */
   stuck: number;
+  /** Held or sustained after the device that started them, or whose pedal held them, went away. */
+  stuckAfterUnplug: number;
   /** Still ringing after the release time at the end. */
   ringing: number;
 }
 
 export class InvariantChecker {
   readonly synth: SynthModel;
-  readonly counts: InvariantCounts = { inputNoteOns: 0, outputNoteOns: 0, dropped: 0, malformed: 0, retunesUnderNotes: 0, doubleNoteOns: 0, stuck: 0, ringing: 0 };
+  readonly counts: InvariantCounts = { inputNoteOns: 0, outputNoteOns: 0, dropped: 0, malformed: 0, retunesUnderNotes: 0, doubleNoteOns: 0, stuck: 0, stuckAfterUnplug: 0, ringing: 0 };
   readonly violations: string[] = [];
   private readonly pitch = new WeakMap<ModelVoice, number>();
   /** Voices that got their note-off in the burst being checked (a steal may retune them next). */
@@ -54,6 +59,10 @@ export class InvariantChecker {
   private movedInBurst: Array<{ voice: ModelVoice; text: string }> = [];
   private noteClassesInBurst = new Set<number>();
   private wheelOffCentre = false;
+  /** The source of each note the engine started, in order, until its note-on arrives. */
+  private readonly startedBy: number[] = [];
+  /** Whether each source's own last pedal message left a pedal down. */
+  private readonly pedalDown = new Map<number, { sustain: boolean; sostenuto: boolean }>();
 
   constructor(private readonly options: InvariantOptions) {
     this.synth = new SynthModel(options.synthA4 ?? 440, options.tailMs);
@@ -67,11 +76,18 @@ export class InvariantChecker {
    * The input messages (whole, as the engine will read them) that the next output burst answers.
    * Call before feeding their output; `burst` starts the burst.
    */
-  input(messages: ReadonlyArray<readonly number[]>): void {
+  input(messages: ReadonlyArray<readonly number[]>, source = 0): void {
     this.endBurst();
     let wheel = false;
     for (const m of messages) {
       if (isNoteOn(m)) this.counts.inputNoteOns++;
+      if (m[0]! < 0xf0 && (m[0]! & 0xf0) === 0xb0) {
+        const pedals = this.pedalDown.get(source) ?? { sustain: false, sostenuto: false };
+        if (m[1] === 64) pedals.sustain = m[2]! >= 64;
+        if (m[1] === 66) pedals.sostenuto = m[2]! >= 64;
+        if (m[1] === 121) pedals.sustain = pedals.sostenuto = false;
+        this.pedalDown.set(source, pedals);
+      }
       const kind = m[0]! & 0xf0;
       if (m[0]! < 0xf0 && kind === 0xe0) {
         wheel = true;
@@ -104,6 +120,25 @@ export class InvariantChecker {
     this.allowed = { wheel: true };
   }
 
+  /** The engine started a note from `source` (its note-on is in the output that follows). */
+  noteStarted(source: number): void {
+    this.startedBy.push(source);
+  }
+
+  /** Call once the engine's output for an unplugged device has been fed. */
+  unplugged(source: number): void {
+    const own = this.pedalDown.get(source);
+    const heldItsPedal = own !== undefined && (own.sustain || own.sostenuto);
+    const otherPedal = [...this.pedalDown].some(([s, p]) => s !== source && (p.sustain || p.sostenuto));
+    this.pedalDown.delete(source);
+    for (const v of this.synth.active()) {
+      const mine = (v.tag as { source?: number } | undefined)?.source === source;
+      if (!mine && !(heldItsPedal && !otherPedal && v.state === 'sustained')) continue;
+      this.counts.stuckAfterUnplug++;
+      this.violation(`${v.state} note ${v.key} on channel ${v.channel + 1} still sounds after device ${source} went away`);
+    }
+  }
+
   /** The engine reported a note it could not place. */
   noteDropped(): void {
     this.counts.dropped++;
@@ -128,6 +163,7 @@ export class InvariantChecker {
     if (voice) {
       this.counts.outputNoteOns++;
       this.noteClassesInBurst.add(voice.channel * 12 + (voice.key % 12));
+      voice.tag = { source: this.startedBy.shift() };
       this.pitch.set(voice, this.synth.frequency(voice));
       return;
     }
@@ -171,7 +207,7 @@ export class InvariantChecker {
   /** True when every promise held. */
   get clean(): boolean {
     const c = this.counts;
-    return c.malformed === 0 && c.retunesUnderNotes === 0 && c.doubleNoteOns === 0 && c.stuck === 0 && c.ringing === 0 && c.outputNoteOns === c.inputNoteOns - c.dropped;
+    return c.malformed === 0 && c.retunesUnderNotes === 0 && c.doubleNoteOns === 0 && c.stuck === 0 && c.stuckAfterUnplug === 0 && c.ringing === 0 && c.outputNoteOns === c.inputNoteOns - c.dropped;
   }
 }
 
