@@ -2,6 +2,7 @@
 // `npm run bench` runs everything with a one-minute soak; `npm run bench:soak` the ten-minute one.
 import { disableMidi } from '../src/io/midi-system.js';
 import { benchAudio } from './audio.js';
+import { benchFuzz } from './fuzz.js';
 import { benchLatency, benchSoak } from './live.js';
 import { benchRouter } from './router.js';
 import { benchSpelling } from './spelling.js';
@@ -16,6 +17,7 @@ if (!soakOnly) {
   benchSpelling();
   benchAudio();
   await benchLatency();
+  await benchFuzz();
 }
 await benchSoak(minutes);
 await disableMidi();

@@ -62,6 +62,16 @@ export function describePorts(kind: 'input' | 'output'): string {
   return ports.length === 0 ? `there are no MIDI ${kind}s` : `${kind}s: ${ports.map((p, i) => `${i} "${p.name}"`).join(', ')}`;
 }
 
+/**
+ * Closes webmidi's own handle on an input that diesis reads through jzz directly
+ * (src/io/raw-input.ts): the Web MIDI layer under webmidi would otherwise keep splitting the same
+ * bytes into a queue that grows while a system-exclusive message is unfinished. The port stays
+ * listed. webmidi opens an input again when it comes back, so call this on every return too.
+ */
+export function closeWebmidiInput(name: string): void {
+  for (const input of WebMidi.inputs) if (input.name === name) void input.close().catch(() => undefined);
+}
+
 export type PortChange = { readonly kind: 'connected' | 'disconnected'; readonly type: 'input' | 'output'; readonly name: string };
 
 /** Calls back when a port appears or disappears (hot-plug); returns a function that stops listening. */

@@ -2,7 +2,9 @@ import { performance } from 'node:perf_hooks';
 import type { TimedMessage } from '../midi/bytes.js';
 import type { Router } from '../router/router.js';
 import { UserError } from '../util/errors.js';
-import { describePorts, findInput, findOutput, onPortChange, type Input, type Output, type PortChange } from '../io/midi-system.js';
+import { closeWebmidiInput, describePorts, findInput, findOutput, matchPort, onPortChange, type Output, type PortChange } from '../io/midi-system.js';
+import { openRawInput, rawInputNames, watchInputs, type RawInput } from '../io/raw-input.js';
+import { addDrops, InputStream, NO_DROPS, type InputDrops } from '../midi/input-stream.js';
 import type { Recorder } from './recorder.js';
 
 /** How often time is let pass in the engine (active-sensing timeout, chord gathering), in ms. */
@@ -26,8 +28,11 @@ export type BridgeNotice =
 interface InputSlot {
   readonly query: string;
   readonly source: number;
-  port: Input | undefined;
-  listener: ((e: { timestamp: number; message: { rawData: Uint8Array } }) => void) | undefined;
+  /** The input's bytes into whole messages, with bounds on system exclusive. */
+  readonly stream: InputStream;
+  port: RawInput | undefined;
+  /** The name of the port last opened for this slot (it comes back under the same name). */
+  name: string | undefined;
 }
 
 /**
@@ -35,12 +40,18 @@ interface InputSlot {
  * imperative shell around `Router`: it adds the clock and the ports, keeps going when ports come
  * and go (an input that disappears has its notes released at once; an output that comes back gets
  * a panic and the start-up messages again), and `stop` always ends every note first.
+ *
+ * Input bytes are taken from jzz's own ports (src/io/raw-input.ts), below webmidi, and made into
+ * whole messages by an `InputStream` per input (running status, real-time bytes inside messages,
+ * system exclusive bounded in length and time); what it drops is counted (`inputDrops`) and added
+ * to the engine's malformed-byte count that the display shows.
  */
 export class Bridge {
   private readonly inputs: InputSlot[];
   private output: Output | undefined;
   private timer: NodeJS.Timeout | undefined;
   private stopPortWatch: (() => void) | undefined;
+  private stopInputWatch: (() => void) | undefined;
   private stopped = false;
   /** Messages that could not be sent (output missing or failing). */
   lostMessages = 0;
@@ -48,7 +59,7 @@ export class Bridge {
 
   private constructor(private readonly options: BridgeOptions) {
     this.clock = options.clock ?? (() => performance.now());
-    this.inputs = options.inputs.map((query, source) => ({ query, source, port: undefined, listener: undefined }));
+    this.inputs = options.inputs.map((query, source) => ({ query, source, stream: new InputStream(), port: undefined, name: undefined }));
   }
 
   /** Opens the ports (all must exist: a missing one is a one-line error listing what does), sends the set-up. */
@@ -59,10 +70,11 @@ export class Bridge {
     }
     if (!findOutput(options.output)) throw new UserError(`no MIDI output matches "${options.output}" (${describePorts('output')})`);
     bridge.output = findOutput(options.output);
-    for (const slot of bridge.inputs) bridge.attach(slot);
+    for (const slot of bridge.inputs) bridge.attach(slot, findInput(slot.query)!.name);
     bridge.send(options.router.start(bridge.clock()));
     bridge.stopPortWatch = onPortChange((change) => bridge.portChanged(change));
-    bridge.timer = setInterval(() => bridge.send(options.router.tick(bridge.clock())), TICK_MS);
+    bridge.stopInputWatch = watchInputs((kind, name) => bridge.inputChanged(kind, name));
+    bridge.timer = setInterval(() => bridge.tick(), TICK_MS);
     return bridge;
   }
 
@@ -87,24 +99,60 @@ export class Bridge {
     };
   }
 
-  private attach(slot: InputSlot): void {
-    const port = findInput(slot.query);
-    if (!port) return;
-    const listener = (e: { timestamp: number; message: { rawData: Uint8Array } }): void => {
-      if (this.stopped) return;
-      const bytes = e.message.rawData;
-      this.options.recorder?.received(e.timestamp, Array.from(bytes));
-      this.send(this.options.router.process(e.timestamp, bytes, slot.source));
-    };
-    port.addListener('midimessage', listener as never);
-    slot.port = port;
-    slot.listener = listener;
+  /** What the inputs have dropped so far (malformed bytes, incomplete system exclusive). */
+  get inputDrops(): InputDrops {
+    return this.inputs.reduce((sum, slot) => addDrops(sum, slot.stream.drops), NO_DROPS);
+  }
+
+  private tick(): void {
+    const now = this.clock();
+    for (const slot of this.inputs) slot.stream.expire(now);
+    this.send(this.options.router.tick(now));
+  }
+
+
+  private attach(slot: InputSlot, name: string): void {
+    slot.name = name;
+    slot.port = openRawInput(
+      name,
+      (bytes) => this.received(slot, bytes),
+      () => {
+        if (slot.port?.name === name) slot.port = undefined;
+      },
+    );
+    closeWebmidiInput(name);
+  }
+
+  private received(slot: InputSlot, bytes: readonly number[]): void {
+    if (this.stopped) return;
+    const now = this.clock();
+    slot.stream.feed(now, bytes, (message) => {
+      this.options.recorder?.received(now, message);
+      this.send(this.options.router.process(now, message, slot.source));
+    });
   }
 
   private detach(slot: InputSlot): void {
-    if (slot.port && slot.listener) slot.port.removeListener('midimessage', slot.listener as never);
+    slot.port?.close();
     slot.port = undefined;
-    slot.listener = undefined;
+  }
+
+  /** An input appeared or disappeared (jzz's watcher, which webmidi's layer also follows). */
+  private inputChanged(kind: 'connected' | 'disconnected', name: string): void {
+    if (this.stopped) return;
+    const now = this.clock();
+    const notice = (action: string): void => this.options.onNotice?.({ kind: 'port', change: { kind, type: 'input', name }, action });
+    for (const slot of this.inputs) {
+      if (kind === 'disconnected' && slot.port?.name === name) {
+        this.detach(slot);
+        slot.stream.reset(); // a message cut off by the unplug is dropped
+        this.send(this.options.router.releaseSource(now, slot.source));
+        notice('its notes were released');
+      } else if (kind === 'connected' && !slot.port && (slot.name === name || matchPort(rawInputNames().map((n) => ({ name: n })), slot.query)?.name === name)) {
+        this.attach(slot, name);
+        notice('reopened');
+      }
+    }
   }
 
   private portChanged(change: PortChange): void {
@@ -112,16 +160,9 @@ export class Bridge {
     const now = this.clock();
     const notice = (action: string): void => this.options.onNotice?.({ kind: 'port', change, action });
     if (change.type === 'input') {
-      for (const slot of this.inputs) {
-        if (change.kind === 'disconnected' && slot.port && slot.port.name === change.name) {
-          this.detach(slot);
-          this.send(this.options.router.releaseSource(now, slot.source));
-          notice('its notes were released');
-        } else if (change.kind === 'connected' && !slot.port && findInput(slot.query)?.name === change.name) {
-          this.attach(slot);
-          notice('reopened');
-        }
-      }
+      // Inputs are followed through jzz (inputChanged); webmidi reopens its own handle on an input
+      // that comes back, which is closed again here.
+      if (change.kind === 'connected' && this.inputs.some((slot) => slot.name === change.name)) closeWebmidiInput(change.name);
       return;
     }
     if (change.kind === 'disconnected' && this.output && this.output.name === change.name) {
@@ -164,6 +205,7 @@ export class Bridge {
     this.stopped = true;
     if (this.timer) clearInterval(this.timer);
     this.stopPortWatch?.();
+    this.stopInputWatch?.();
     for (const slot of this.inputs) this.detach(slot);
   }
 }

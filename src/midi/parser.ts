@@ -10,12 +10,33 @@ export const MAX_SYSEX_BYTES = 65_536;
  * counted; nothing ever throws.
  */
 export class MidiStreamParser {
+  /** Longest system-exclusive message this parser accepts (F0 and F7 included). */
+  readonly maxSysexBytes: number;
   private status = 0;
   private needed = 0;
   private buffer: number[] = [];
   private sysex: number[] | undefined;
   /** Bytes dropped because they did not form a whole, valid message. */
   dropped = 0;
+  /** System-exclusive messages dropped: cut by a status byte, too long, or abandoned (`dropSysex`). */
+  droppedSysex = 0;
+
+  constructor(options: { readonly maxSysexBytes?: number } = {}) {
+    this.maxSysexBytes = options.maxSysexBytes ?? MAX_SYSEX_BYTES;
+  }
+
+  /** Bytes of the system-exclusive message being received (F0 included), 0 when none is. */
+  get pendingSysexBytes(): number {
+    return this.sysex?.length ?? 0;
+  }
+
+  /** Gives up the system-exclusive message being received (it took too long); its bytes count as dropped. */
+  dropSysex(): void {
+    if (!this.sysex) return;
+    this.dropped += this.sysex.length;
+    this.droppedSysex++;
+    this.sysex = undefined;
+  }
 
   /** Feeds bytes; `onMessage` receives each complete message (a fresh array). */
   feed(bytes: ArrayLike<number>, onMessage: (message: number[]) => void): void {
@@ -44,8 +65,7 @@ export class MidiStreamParser {
         this.sysex = undefined;
         return;
       }
-      this.dropped += this.sysex.length; // a status byte before F7: the sysex is incomplete
-      this.sysex = undefined;
+      this.dropSysex(); // a status byte before F7: the sysex is incomplete
     }
     this.dropped += this.buffer.length; // a message cut short by a new status
     this.buffer = [];
@@ -75,9 +95,9 @@ export class MidiStreamParser {
 
   private dataByte(byte: number, onMessage: (message: number[]) => void): void {
     if (this.sysex) {
-      if (this.sysex.length >= MAX_SYSEX_BYTES) {
-        this.dropped += this.sysex.length + 1;
-        this.sysex = undefined;
+      if (this.sysex.length >= this.maxSysexBytes - 1) {
+        this.dropped++; // this byte, then the rest
+        this.dropSysex();
         return;
       }
       this.sysex.push(byte);
@@ -101,9 +121,9 @@ export class MidiStreamParser {
 
   /** Forgets any partial message (a port closed mid-message). */
   reset(): void {
-    this.dropped += this.buffer.length + (this.sysex?.length ?? 0);
+    this.dropped += this.buffer.length;
     this.buffer = [];
-    this.sysex = undefined;
+    this.dropSysex();
     this.status = 0;
   }
 }

@@ -194,7 +194,7 @@ export class BendOutput implements OutputStrategy {
     }
   }
 
-  panic(context: OutputContext): void {
+  panic(context: OutputContext, time: number): void {
     this.wheelCents = 0;
     const zone = this.setup.zone;
     if (zone.layout === 'mpe') context.emit(pitchBend(zone.master, BEND_CENTRE));
@@ -205,8 +205,8 @@ export class BendOutput implements OutputStrategy {
         s.tuningBend = BEND_CENTRE;
       }
       s.stale = false;
+      if (s.sounding > 0) s.lastEnd = time; // its notes' release tails ring on: the guard starts now
       s.sounding = 0;
-      s.lastEnd = -Infinity;
     }
   }
 }

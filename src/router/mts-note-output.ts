@@ -84,6 +84,11 @@ export class MtsNoteOutput extends SingleChannelOutput implements OutputStrategy
     const { key, cut } = this.choose(Math.max(0, Math.min(127, note.nearestKey)), data, time);
     const slot = this.slots[key]!;
     if (cut === 'steal') {
+      // Under a pedal a note-off cannot silence the slot's notes: retuning it would be heard.
+      if (context.pedalDown) {
+        context.refuse('all 128 tuning slots are sounding and a pedal holds them');
+        return undefined;
+      }
       context.steal((p) => p.channel === this.setup.channel && p.key === key);
       context.emit(noteOff(this.setup.channel, key));
       slot.sounding = 0;
@@ -113,11 +118,11 @@ export class MtsNoteOutput extends SingleChannelOutput implements OutputStrategy
     return true;
   }
 
-  override panic(context: OutputContext): void {
-    super.panic(context);
+  override panic(context: OutputContext, time: number): void {
+    super.panic(context, time);
     for (const slot of this.slots) {
+      if (slot.sounding > 0) slot.lastEnd = time; // release tails ring on: the guard starts now
       slot.sounding = 0;
-      slot.lastEnd = -Infinity;
     }
   }
 }

@@ -21,6 +21,10 @@ export interface OutputContext {
   steal(which: (p: Placement) => boolean): void;
   /** Reports a tuning the output could not reach exactly (bend or offset clamped). */
   outOfRange(note: TunedNote, neededCents: number): void;
+  /** Whether a pedal is down: a note-off then cannot silence a note, so a steal could be heard. */
+  readonly pedalDown: boolean;
+  /** Says why the note being placed cannot sound (before `place` returns undefined). */
+  refuse(reason: string): void;
 }
 
 /**
@@ -51,8 +55,8 @@ export interface OutputStrategy {
   voiceEnded(placement: Placement, time: number): void;
   /** The player's pitch wheel moved or its range changed: 14-bit value, range in semitones. */
   wheel(value: number, rangeSemitones: number, time: number, context: OutputContext): void;
-  /** Forgets all voices and centres the bends it has used (part of panic). */
-  panic(context: OutputContext): void;
+  /** Forgets all voices and centres the bends it has used (part of panic); release tails still ring, so guards start at `time`. */
+  panic(context: OutputContext, time: number): void;
   /** Optional: respelling may retune a sounding unit in place. */
   readonly inPlace?: InPlaceRetuning;
   /** Optional: the spelling this output can really sound for `pitch` (a sample set may lack one). */

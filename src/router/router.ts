@@ -60,6 +60,8 @@ export class Router {
   private passThrough = false;
   private sensing = false;
   private lastInput = 0;
+  /** Why the output could not place the note being sounded, if it said. */
+  private refusal: string | undefined;
 
   constructor(private readonly setup: RouterSetup) {
     const observe = (this.observe = setup.observer);
@@ -68,13 +70,13 @@ export class Router {
     this.tables = new TableChoice(setup.table);
     this.gatherer = new ChordGatherer(setup.gather ?? 0);
     this.everyChannel = [...new Set([...output.allChannels, ...output.zoneChannels])];
-    this.book = new VoiceBook({
+    const book = (this.book = new VoiceBook({
       noteOff: (voice, velocity) => this.emit(noteOff(voice.placement.channel, voice.placement.key, velocity)),
       ended: (voice, cause) => {
         if (cause !== 'stolen' && cause !== 'panic') output.voiceEnded(voice.placement, this.now);
         observe?.({ type: 'voice-ended', time: this.now, id: voice.id, placement: voice.placement, cause });
       },
-    });
+    }));
     this.context = {
       emit: (data) => this.emit(data),
       retuned: () => observe?.({ type: 'retune', time: this.now }),
@@ -83,6 +85,10 @@ export class Router {
         observe?.({ type: 'steal', time: this.now, ids: cut.map((v) => v.id) });
       },
       outOfRange: (note, neededCents) => observe?.({ type: 'out-of-range', time: this.now, pitch: note.pitch, neededCents }),
+      get pedalDown() {
+        return book.sustainDown || book.sostenutoDown;
+      },
+      refuse: (reason) => (this.refusal = reason),
     };
     this.actions = {
       respell: () => this.respell(),
@@ -300,9 +306,10 @@ export class Router {
     const output = this.setup.output;
     const pitch = output.available ? output.available(wanted) : wanted;
     const tuned = this.tables.now(this.passThrough, () => this.setup.speller.currentTonic()).tune(pitch);
+    this.refusal = undefined;
     const placement = output.place(tuned, this.now, this.context);
     if (!placement) {
-      this.observe?.({ type: 'note-dropped', time: this.now, id, pitch, reason: 'its tuned key lies outside 0…127' });
+      this.observe?.({ type: 'note-dropped', time: this.now, id, pitch, reason: this.refusal ?? 'its tuned key lies outside 0…127' });
       return;
     }
     this.book.start({ id, pitch, velocity, placement, state: 'held', silenced: false }); // releases a voice on the same synth key first
@@ -415,7 +422,7 @@ export class Router {
       this.emit(controlChange(c, CC.soft, 0));
       this.emit(controlChange(c, CC.allNotesOff, 0));
     }
-    this.setup.output.panic(this.context);
+    this.setup.output.panic(this.context, this.now);
     this.observe?.({ type: 'panic', time: this.now, reason });
   }
 }

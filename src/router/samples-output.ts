@@ -45,7 +45,7 @@ export class SamplesOutput implements OutputStrategy {
     for (const c of this.zoneChannels) context.emit(pitchBend(c, value));
   }
 
-  panic(context: OutputContext): void {
+  panic(context: OutputContext, _time?: number): void {
     for (const c of this.zoneChannels) context.emit(pitchBend(c, BEND_CENTRE));
   }
 }

@@ -34,7 +34,7 @@ export abstract class SingleChannelOutput {
     this.sentRange = sendWheel(this.channel, value, range, this.sendBendRange, this.wheelRange, this.sentRange, context.emit);
   }
 
-  panic(context: OutputContext): void {
+  panic(context: OutputContext, _time?: number): void {
     context.emit(pitchBend(this.channel, BEND_CENTRE));
   }
 }
