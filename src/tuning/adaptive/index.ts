@@ -1,0 +1,4 @@
+export * from './intervals.js';
+export * from './settings.js';
+export * from './tuner.js';
+export * from './purity.js';
