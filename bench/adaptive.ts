@@ -3,11 +3,12 @@
 // code can later measure the engine's output as the reference synth sounds it.
 import { readFileSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
-import { parseSpelledPitch, type SpelledPitch } from '../src/pitch/index.js';
+import { keyOf, parseSpelledPitch, type PitchClass, type SpelledPitch } from '../src/pitch/index.js';
 import { loadTuningPreset } from '../src/presets/tuning-presets.js';
 import { parseWrittenSpellings } from '../src/spelling/accuracy.js';
+import { FollowSpeller } from '../src/spelling/follow.js';
 import { A440, frequency, type Tuning } from '../src/tuning/index.js';
-import { AdaptiveTuner, CONSONANCE_FAMILIES, measurePurity, pitchClassDrift, type AdaptiveSettings, type PurityReport, type SoundingEvent } from '../src/tuning/adaptive/index.js';
+import { AdaptiveTuner, bassDrift, CONSONANCE_FAMILIES, measurePurity, type AdaptiveSettings, type PurityReport, type SoundingEvent } from '../src/tuning/adaptive/index.js';
 import { corpusDir, loadCorpus, type Movement } from './corpus.js';
 import { heading, percentile } from './timing.js';
 
@@ -70,19 +71,32 @@ export interface AdaptiveRun {
 }
 
 /** Drives an `AdaptiveTuner` with a piece's written spellings and timing. */
-export function runAdaptive(notes: readonly WrittenNote[], table: Tuning, settings: Partial<AdaptiveSettings> = {}): AdaptiveRun {
+/**
+ * Drives an `AdaptiveTuner` with a piece's written spellings and timing. The key of the table
+ * follows the music as the engine's follow speller hears it (its spellings are not used), as
+ * the router will do; `tonic` fixes it instead.
+ */
+export function runAdaptive(notes: readonly WrittenNote[], table: Tuning, settings: Partial<AdaptiveSettings> = {}, tonic?: PitchClass): AdaptiveRun {
   const tuner = new AdaptiveTuner({ table, reference: A440, settings });
+  const follow = tonic === undefined ? new FollowSpeller() : undefined;
+  const context = (n: WrittenNote, time: number) => ({ key: keyOf(n.pitch), velocity: 64, time, channel: 0, source: 0 });
+  tuner.setTonic(tonic);
   const events: SoundingEvent[] = [];
   const costPerNote: number[] = [];
   const given = new Map<number | string, number>();
   let movedInTuner = 0;
   for (const { time, ons, offs } of timeline(notes)) {
     for (const n of offs) {
+      follow?.noteOff(context(n, time));
       tuner.noteOff(time, n.id);
       given.delete(n.id);
       events.push({ kind: 'off', time, id: n.id });
     }
     if (ons.length === 0) continue;
+    if (follow) {
+      follow.spell(ons.map((n) => context(n, time)));
+      tuner.setTonic(follow.currentTonic());
+    }
     const start = performance.now();
     const placed = tuner.chordOn(time, ons.map((n) => ({ id: n.id, pitch: n.pitch })));
     costPerNote.push(((performance.now() - start) * 1000) / ons.length);
@@ -105,10 +119,13 @@ export function fixedEvents(notes: readonly WrittenNote[], tuning: Tuning): Soun
   return events;
 }
 
-/** The piece's final: the lowest note of the last onset. */
-export function finalOf(notes: readonly WrittenNote[]): SpelledPitch | undefined {
-  const lastOn = Math.max(...notes.map((n) => n.on));
-  return notes.filter((n) => n.on === lastOn).sort((a, b) => a.pitch.octave * 12 - b.pitch.octave * 12 + (a.pitch.fifths * 7 - b.pitch.fifths * 7))[0]?.pitch;
+/** The piece's tonic as the player would declare it: the lowest note of the first onset. */
+export function tonicOf(notes: readonly WrittenNote[]): SpelledPitch | undefined {
+  const firstOn = Math.min(...notes.map((n) => n.on));
+  return notes
+    .filter((n) => n.on === firstOn)
+    .map((n) => n.pitch)
+    .sort((a, b) => keyOf(a) - keyOf(b))[0];
 }
 
 interface Pieces {
@@ -146,9 +163,10 @@ export function progression(text: string, chordMs = 600): WrittenNote[] {
 
 /** The comma pump I–vi–ii–V, `rounds` times and a final I: detached, or with every common tone held. */
 export function commaPump(rounds: number, legato: boolean): WrittenNote[] {
-  const hold = legato ? '~' : '';
-  const round = [`C3 G3 E4${hold} C5${hold}`, `A2 A3 E4${hold} C5`, `D3 A3${hold} F4 D5${hold}`, `G2 B3 D4 D5`];
-  return progression([...Array.from({ length: rounds }, () => round).flat(), 'C3 G3 E4 C5'].join(' | '));
+  const round = legato
+    ? ['C3 E4~ G4 C5~', 'A2 E4 A4~ C5', 'D3 F4 A4 D5~', 'G2 B4 D5 G4~']
+    : ['C3 E4 G4 C5', 'A2 E4 A4 C5', 'D3 F4 A4 D5', 'G2 B4 D5 G4'];
+  return progression([...Array.from({ length: rounds }, () => round).flat(), 'C3 E4 G4 C5'].join(' | '));
 }
 
 /** A chorale-like phrase of our own in C major with held common tones, tonicising the dominant and the relative minor. */
@@ -164,80 +182,94 @@ export const OWN_CHORALE = progression(
 interface Row {
   readonly label: string;
   readonly purity: PurityReport;
-  readonly drift: number[];
+  /** Tonic drift per piece; undefined for a fixed tuning, which cannot drift. */
+  readonly drift: number[] | undefined;
+  readonly compromises?: number;
+  readonly notes?: number;
+  readonly moved?: number;
 }
 
-function rowsFor(group: Pieces, table: Tuning, fixed: ReadonlyArray<readonly [string, Tuning]>, settings: Partial<AdaptiveSettings>) {
+/** The player's drift setting at three points: the default, "pure now" and "no drift". */
+const VARIANTS: ReadonlyArray<readonly [string, Partial<AdaptiveSettings>]> = [
+  ['just-adaptive', {}],
+  ['  anchor 0', { anchor: 0, snap: 0 }],
+  ['  anchor 3', { anchor: 3 }],
+];
+
+function rowsFor(group: Pieces, table: Tuning, fixed: ReadonlyArray<readonly [string, Tuning]>) {
   const cost: number[] = [];
-  let moved = 0;
-  let compromises = 0;
-  let notes = 0;
-  const adaptive: SoundingEvent[][] = [];
-  const drifts: number[] = [];
-  const fixedRuns = fixed.map(() => ({ events: [] as SoundingEvent[][], drift: [] as number[] }));
-  for (const piece of group.pieces) {
-    if (piece.notes.length === 0) continue;
-    const final = finalOf(piece.notes);
-    const run = runAdaptive(piece.notes, table, settings);
-    adaptive.push(run.events);
-    cost.push(...run.costPerNote);
-    moved += run.movedInTuner;
-    compromises += run.compromises;
-    notes += piece.notes.length;
-    const d = final && pitchClassDrift(run.events, final.fifths);
-    if (d !== undefined) drifts.push(d);
-    fixed.forEach(([, tuning], i) => {
-      const tonal = final ? tuning.withTonic(final) : tuning;
-      const events = fixedEvents(piece.notes, tonal);
-      fixedRuns[i]!.events.push(events);
-      const fd = final && pitchClassDrift(events, final.fifths);
-      if (fd !== undefined) fixedRuns[i]!.drift.push(fd);
-    });
+  const rows: Row[] = [];
+  for (const [label, settings] of VARIANTS) {
+    const events: SoundingEvent[][] = [];
+    const drift: number[] = [];
+    let moved = 0;
+    let compromises = 0;
+    let notes = 0;
+    for (const piece of group.pieces) {
+      if (piece.notes.length === 0) continue;
+      const tonic = tonicOf(piece.notes);
+      const run = runAdaptive(piece.notes, table, settings, tonic);
+      events.push(run.events);
+      if (label === 'just-adaptive') cost.push(...run.costPerNote);
+      moved += run.movedInTuner;
+      compromises += run.compromises;
+      notes += piece.notes.length;
+      const d = tonic && bassDrift(run.events, tonic.fifths);
+      if (d !== undefined) drift.push(d);
+    }
+    const purity = measurePurity(events.flat());
+    rows.push({ label, purity, drift, compromises, notes, moved: moved + purity.moved });
   }
-  const rows: Row[] = [
-    { label: 'just-adaptive', purity: measurePurity(adaptive.flat()), drift: drifts },
-    ...fixed.map(([label], i) => ({ label, purity: measurePurity(fixedRuns[i]!.events.flat()), drift: fixedRuns[i]!.drift })),
-  ];
+  for (const [label, tuning] of fixed) {
+    const events = group.pieces.filter((p) => p.notes.length > 0).flatMap((p) => {
+      const tonic = tonicOf(p.notes);
+      return fixedEvents(p.notes, tonic ? tuning.withTonic(tonic) : tuning);
+    });
+    rows.push({ label, purity: measurePurity(events), drift: undefined });
+  }
   cost.sort((a, b) => a - b);
-  return { rows, cost, moved, compromises, notes };
+  return { rows, cost };
 }
 
 const f2 = (n: number): string => n.toFixed(2);
 
-function printGroup(group: Pieces, table: Tuning, fixed: ReadonlyArray<readonly [string, Tuning]>, settings: Partial<AdaptiveSettings>): void {
-  const { rows, cost, moved, compromises, notes } = rowsFor(group, table, fixed, settings);
-  const pieces = group.pieces.filter((p) => p.notes.length > 0).length;
-  process.stdout.write(`\n${group.label}: ${pieces} pieces, ${notes} notes\n`);
-  const head = ['tuning'.padEnd(16), ...CONSONANCE_FAMILIES.map((f) => f.padStart(24)), 'all'.padStart(8), 'max |drift|'.padStart(12), 'mean |drift|'.padStart(13)];
+function printGroup(group: Pieces, table: Tuning, fixed: ReadonlyArray<readonly [string, Tuning]>): void {
+  const { rows, cost } = rowsFor(group, table, fixed);
+  const pieces = group.pieces.filter((p) => p.notes.length > 0);
+  process.stdout.write(`\n${group.label}: ${pieces.length} piece${pieces.length === 1 ? '' : 's'}, ${pieces.reduce((n, p) => n + p.notes.length, 0)} notes\n`);
+  const head = ['tuning'.padEnd(15), ...CONSONANCE_FAMILIES.map((f) => f.padStart(24)), 'all'.padStart(7), 'max|drift|'.padStart(11), 'mean|drift|'.padStart(12), 'compromised'.padStart(12), 'moved'.padStart(6)];
   process.stdout.write(head.join('') + '\n');
   for (const r of rows) {
     const cells = CONSONANCE_FAMILIES.map((f) => `${f2(r.purity.byFamily[f].meanAbs)} (${r.purity.byFamily[f].count})`.padStart(24));
-    const maxDrift = r.drift.length ? Math.max(...r.drift.map(Math.abs)) : NaN;
-    const meanDrift = r.drift.length ? r.drift.reduce((s, d) => s + Math.abs(d), 0) / r.drift.length : NaN;
-    process.stdout.write([r.label.padEnd(16), ...cells, f2(r.purity.all.meanAbs).padStart(8), f2(maxDrift).padStart(12), f2(meanDrift).padStart(13)].join('') + '\n');
+    const drift = r.drift;
+    const maxDrift = drift === undefined ? 'fixed' : drift.length ? f2(Math.max(...drift.map(Math.abs))) : '-';
+    const meanDrift = drift === undefined ? 'fixed' : drift.length ? f2(drift.reduce((s, d) => s + Math.abs(d), 0) / drift.length) : '-';
+    const compromised = r.compromises === undefined ? '' : `${((100 * r.compromises) / Math.max(1, r.notes ?? 1)).toFixed(1)} %`;
+    process.stdout.write([r.label.padEnd(15), ...cells, f2(r.purity.all.meanAbs).padStart(7), maxDrift.padStart(11), meanDrift.padStart(12), compromised.padStart(12), String(r.moved ?? '').padStart(6)].join('') + '\n');
   }
-  process.stdout.write(
-    `just-adaptive: notes moved while sounding ${moved} (tuner) / ${rows[0]!.purity.moved} (events); compromises ${compromises} (${((100 * compromises) / Math.max(1, notes)).toFixed(1)} %); ` +
-      `cost per note p50 ${f2(percentile(cost, 0.5))} µs, p99 ${f2(percentile(cost, 0.99))} µs\n`,
-  );
+  process.stdout.write(`just-adaptive cost per note (chordOn time / notes): p50 ${f2(percentile(cost, 0.5))} µs, p99 ${f2(percentile(cost, 0.99))} µs\n`);
 }
 
-/** Mean |deviation from pure| (cents, and how many intervals) of every fifth/fourth, third and sixth that sounds; drift of the final. */
-export function benchAdaptive(settings: Partial<AdaptiveSettings> = {}): void {
-  heading('adaptive just intonation: mean |cents from pure| of sounding intervals (count), |drift| of the final, end against start');
+/**
+ * Mean |deviation from pure| in cents (and how many intervals) of every fifth/fourth, third and
+ * sixth that sounds together; the drift of the tonic (the piece's opening bass) from its first
+ * to its last sounding as the lowest note; notes at a compromise pitch; notes moved while sounding.
+ */
+export function benchAdaptive(): void {
+  heading('adaptive just intonation: mean |cents from pure| of the fifths, thirds and sixths that sound (count); tonic drift, end against start');
   const table = loadTuningPreset('just-adaptive').tuning;
   const fixed = [
     ['just-major', loadTuningPreset('just-major').tuning],
     ['meantone-1-4', loadTuningPreset('meantone-1-4').tuning],
   ] as const;
   const corpus = (name: 'schuetz' | 'corelli'): Pieces => ({ label: `corpus/${name}`, pieces: loadCorpus(corpusDir(name)).map((m) => ({ name: m.name, notes: writtenNotes(m) })) });
-  const own: Pieces = {
-    label: 'own pieces (comma pump ×8 detached and legato, a chorale phrase)',
-    pieces: [
-      { name: 'pump', notes: commaPump(8, false) },
-      { name: 'pump-legato', notes: commaPump(8, true) },
-      { name: 'chorale', notes: OWN_CHORALE },
-    ],
-  };
-  for (const group of [corpus('schuetz'), corpus('corelli'), own]) printGroup(group, table, fixed, settings);
+  const own = (label: string, notes: WrittenNote[]): Pieces => ({ label, pieces: [{ name: label, notes }] });
+  const groups = [
+    corpus('schuetz'),
+    corpus('corelli'),
+    own('own: comma pump I-vi-ii-V ×8, detached', commaPump(8, false)),
+    own('own: comma pump ×8, common tones held (one phrase)', commaPump(8, true)),
+    own('own: chorale phrase in C', OWN_CHORALE),
+  ];
+  for (const group of groups) printGroup(group, table, fixed);
 }

@@ -109,18 +109,40 @@ export function measurePurity(events: Iterable<SoundingEvent>): PurityReport {
 }
 
 /**
- * Drift of one pitch class over a performance: the cents from its first sounding to its last,
- * octaves removed (the tonic's drift when given the piece's final). Undefined if it never sounds.
+ * Drift of one pitch class over a performance — the tonic's, given the piece's final: the cents
+ * from the first onset where it is the lowest note sounding to the last such onset, octaves
+ * removed. Undefined when it never sounds in the bass.
  */
-export function pitchClassDrift(events: Iterable<SoundingEvent>, fifths: number): number | undefined {
+export function bassDrift(events: Iterable<SoundingEvent>, fifths: number): number | undefined {
+  const sounding = new Map<number | string, number>();
   let first: number | undefined;
   let last: number | undefined;
+  let pending: Array<{ hz: number; fifths: number | undefined }> = [];
+  let pendingTime = NaN;
+  const settle = (): void => {
+    if (pending.length === 0) return;
+    const lowest = Math.min(...sounding.values());
+    for (const p of pending) {
+      if (p.fifths !== fifths || p.hz > lowest) continue;
+      const c = 1200 * Math.log2(p.hz);
+      first ??= c;
+      last = c;
+    }
+    pending = [];
+  };
   for (const e of events) {
-    if (e.kind !== 'on' || e.pitch?.fifths !== fifths) continue;
-    const c = 1200 * Math.log2(e.hz);
-    if (first === undefined) first = c;
-    last = c;
+    if (e.time !== pendingTime) settle();
+    pendingTime = e.time;
+    if (e.kind === 'on') {
+      sounding.set(e.id, e.hz);
+      pending.push({ hz: e.hz, fifths: e.pitch?.fifths });
+    } else if (e.kind === 'change') {
+      if (sounding.has(e.id)) sounding.set(e.id, e.hz);
+    } else {
+      sounding.delete(e.id);
+    }
   }
+  settle();
   if (first === undefined || last === undefined) return undefined;
   const d = last - first;
   return d - 1200 * Math.round(d / 1200);

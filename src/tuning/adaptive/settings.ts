@@ -16,8 +16,16 @@ export interface AdaptiveSettings {
    * the level follows the table and the notes just heard.
    */
   readonly anchor: number;
+  /**
+   * How strongly the level is pulled to a whole number of syntonic commas from the table (0: not
+   * at all): heals the fractions of a comma that compromises leave, without undoing a whole
+   * comma's move that pure intervals ask for.
+   */
+  readonly snap: number;
   /** How strongly the intervals to notes just released (melodic intervals, repeated notes) count. */
   readonly recentWeight: number;
+  /** Whether the notes just heard also pull new notes that sound against held ones (off: held notes alone decide). */
+  readonly recentWhileHeld: boolean;
   /** Half-life of a released note's influence, in milliseconds. */
   readonly recentHalfLifeMs: number;
   /**
@@ -32,9 +40,11 @@ export interface AdaptiveSettings {
 /** Chosen on the bench (bench/adaptive.ts): drift within 3 cents with the corpora nearly pure. */
 export const DEFAULT_ADAPTIVE: AdaptiveSettings = {
   limit: 5,
-  minorSeventh: '16/9',
-  anchor: 0.05,
-  recentWeight: 0.3,
+  minorSeventh: '9/5',
+  anchor: 0.6,
+  snap: 1.5,
+  recentWeight: 0.05,
+  recentWhileHeld: false,
   recentHalfLifeMs: 500,
   phraseGapMs: 300,
   compromiseCents: 0.5,

@@ -43,6 +43,55 @@ export interface AdaptiveTunerOptions {
   readonly settings?: Partial<AdaptiveSettings>;
 }
 
+/** What decides the common shift of a group of new notes (see `levelShift`). */
+interface Level {
+  /** Weight of the group's intervals to held notes: how much a shift would cost in purity. */
+  held: number;
+  count: number;
+  /** (table − pitch) of every held note and of the group's notes as shaped. */
+  readonly offsets: number[];
+  recentWeight: number;
+  recentPull: number;
+}
+
+/** The syntonic comma, 81/80, in cents: two 5-limit pitches of one spelling differ by a whole number of them. */
+export const SYNTONIC_COMMA_CENTS = 1200 * Math.log2(81 / 80);
+
+/**
+ * The common shift of a group of new notes. Held notes resist it (weight `held`, target 0);
+ * `anchor` pulls toward the fixed table — the median offset of what sounds, so a chord whose
+ * notes mostly sit on the table is not pulled for the one note a comma away (the D of D–F–A in
+ * C major) while a texture a comma off is; the notes just heard pull toward their intervals.
+ * `snap` then pulls the result to the nearest level a whole number of commas from the table,
+ * which heals the fractions of a comma that compromises leave, at little cost in purity.
+ */
+function levelShift(level: Level, anchor: number, snap: number): number {
+  const table = median([...level.offsets]);
+  const a = anchor * level.count;
+  const free = level.held + a + level.recentWeight;
+  const shift = free > 0 ? (a * table + level.recentPull) / free : table;
+  const s = snap * (level.held + level.count);
+  if (s === 0) return shift;
+  // circular mean of the offsets' phase within a comma
+  let cos = 0;
+  let sin = 0;
+  for (const d of level.offsets) {
+    const angle = (2 * Math.PI * d) / SYNTONIC_COMMA_CENTS;
+    cos += Math.cos(angle);
+    sin += Math.sin(angle);
+  }
+  const phase = (Math.atan2(sin, cos) / (2 * Math.PI)) * SYNTONIC_COMMA_CENTS;
+  const lattice = phase + SYNTONIC_COMMA_CENTS * Math.round((shift - phase) / SYNTONIC_COMMA_CENTS);
+  const w = free > 0 ? free : 1;
+  return (w * shift + s * lattice) / (w + s);
+}
+
+function median(values: number[]): number {
+  values.sort((p, q) => p - q);
+  const mid = values.length >> 1;
+  return values.length % 2 === 1 ? values[mid]! : (values[mid - 1]! + values[mid]!) / 2;
+}
+
 function add(array: Float64Array, index: number, amount: number): void {
   array[index] = array[index]! + amount;
 }
@@ -66,9 +115,16 @@ const GAUGE = 1e-9;
  * 1. *shape*: the new notes' pitches minimising Σ w·(xᵢ − xⱼ − tᵢⱼ)² over pairs among them and with
  *    the sounding notes (a small symmetric system, solved by Cholesky);
  * 2. *level*: one common shift s of each connected group of new notes, minimising
- *    W·s² + anchor·n·(s − s_table)² + Σ recent·w·2^(−age/half-life)·(s − s_recent)², where W is the
- *    weight of the group's intervals to sounding notes. Moving only the level keeps a new chord
- *    pure among itself whatever the memory and anchor terms ask.
+ *    W·s² + anchor·n·(s − s_table)² + recent·(s − s_recent)², then drawn toward the nearest whole
+ *    number of syntonic commas from the table (`snap`; see `levelShift`). W is the weight of the
+ *    group's intervals to sounding notes (a shift costs that much purity), s_table the median
+ *    offset of what sounds from the fixed table, s_recent what the notes just heard ask for
+ *    (fading with a half-life). Moving only the level keeps a new chord pure among itself
+ *    whatever the memory and anchor terms ask; with nothing sounding it lands on the table.
+ *
+ * Drift: after `phraseGapMs` of silence the notes heard before are forgotten and the next chord
+ * starts on the table (the tonic where the table has it); while notes sound, `anchor` trades
+ * purity against the held notes for a level that stays near the table.
  *
  * Pure, synchronous and clock-free: time is each call's timestamp in milliseconds.
  */
@@ -90,11 +146,22 @@ export class AdaptiveTuner {
     this.table = options.table;
     this.tonicTable = options.table;
     this.reference = options.reference;
+    this.warm();
   }
 
-  /** The key whose fixed table anchors the level (a speller's tonic); undefined: the table's own. */
+  /**
+   * The key whose fixed table anchors the level: the piece's key as declared (`--key`, a
+   * set-key control); undefined: the table's own tonic. A key estimate that follows every
+   * modulation moves the anchor by a comma at some key changes (the bench measures it).
+   */
   setTonic(tonic: PitchClass | undefined): void {
     this.tonicTable = tonic === undefined ? this.table : this.table.withTonic(tonic);
+    this.warm();
+  }
+
+  /** Computes the table's common spellings (exact arithmetic) now, off the note path. */
+  private warm(): void {
+    for (let fifths = -15; fifths <= 15; fifths++) this.tableCents({ fifths, octave: 4 });
   }
 
   /** A note begins: its pitch, which stays until `noteOff`. */
@@ -147,28 +214,42 @@ export class AdaptiveTuner {
     const x = solveSymmetric(a, b, n);
 
     // 2. level, per group of new notes joined by intervals
-    const { anchor, recentWeight, recentHalfLifeMs } = this.settings;
-    const sums = new Map<number, { weight: number; pull: number }>();
+    const { anchor, snap, recentWeight, recentHalfLifeMs } = this.settings;
+    // Offsets (table − pitch) of what sounds: the held notes and each group's new notes.
+    const heldOff = held.map((h) => this.tableCents(h.pitch) - h.cents);
+    const groups = new Map<number, Level>();
     for (let i = 0; i < n; i++) {
       const g = root(i);
-      const sum = sums.get(g) ?? { weight: 0, pull: 0 };
-      sums.set(g, sum);
-      sum.weight += heldWeight[i]! + anchor;
-      sum.pull += anchor * (tableCents[i]! - x[i]!);
+      let level = groups.get(g);
+      if (!level) groups.set(g, (level = { held: 0, count: 0, offsets: [...heldOff], recentWeight: 0, recentPull: 0 }));
+      level.held += heldWeight[i]!;
+      level.offsets.push(tableCents[i]! - x[i]!);
+      level.count++;
+    }
+    for (let i = 0; i < n; i++) {
+      const level = groups.get(root(i))!;
+      if (level.held > 0 && !this.settings.recentWhileHeld) continue;
+      // The notes just heard ask for one shift of this note: their weighted mean, weighing as
+      // much as the freshest of them (so `recentWeight` compares directly with `anchor`).
+      let weights = 0;
+      let desired = 0;
+      let freshest = 0;
       for (const r of this.recent) {
         const t = this.intervals.target(r.pitch, notes[i]!.pitch, present);
         if (t.weight === 0) continue;
-        const w = recentWeight * t.weight * 2 ** ((r.off - time) / recentHalfLifeMs);
-        sum.weight += w;
-        sum.pull += w * (r.cents + t.cents - x[i]!);
+        const fading = 2 ** ((r.off - time) / recentHalfLifeMs);
+        weights += t.weight * fading;
+        desired += t.weight * fading * (r.cents + t.cents - x[i]!);
+        freshest = Math.max(freshest, fading);
       }
+      if (weights === 0) continue;
+      level.recentWeight += recentWeight * freshest;
+      level.recentPull += recentWeight * freshest * (desired / weights);
     }
+    const shifts = new Map<number, number>();
+    for (const [g, level] of groups) shifts.set(g, levelShift(level, anchor, snap));
+    for (let i = 0; i < n; i++) x[i] = x[i]! + shifts.get(root(i))!;
     const placed: AdaptedNote[] = [];
-    for (let i = 0; i < n; i++) {
-      const sum = sums.get(root(i))!;
-      const shift = sum.weight > 0 ? sum.pull / sum.weight : tableCents[i]! - x[i]!;
-      x[i] = x[i]! + shift;
-    }
     for (let i = 0; i < n; i++) {
       const { id, pitch } = notes[i]!;
       const c = x[i]!;
