@@ -2,3 +2,4 @@ export * from './intervals.js';
 export * from './settings.js';
 export * from './tuner.js';
 export * from './purity.js';
+export * from './describe.js';

@@ -26,8 +26,10 @@ import { nearCents } from '../tuning.js';
  * |     ±9 | augmented second (diminished seventh)    | 75/64 (128/75)    |   0.02 |
  * |  ≥ ±10 | anything further                         | (not tuned)       |      0 |
  *
- * Options: the minor seventh may be 9/5 (the minor third above a fifth) instead of 16/9 (two
- * fourths); the 7-limit table tunes the minor seventh 7/4 (major second 8/7), the diminished fifth
+ * Options: the minor seventh may be 9/5 (the minor third above a fifth; the default) instead of
+ * 16/9 (two fourths), and then the diminished fifth is 36/25 (two minor thirds, 25/18 inverted)
+ * instead of 64/45, so that dominant and half-diminished seventh chords and diminished triads can
+ * sound with every interval at its target; the 7-limit table tunes the minor seventh 7/4 (major second 8/7), the diminished fifth
  * 7/5 (augmented fourth 10/7), with the seventh's weight raised to 0.5, and the minor third
  * from the fifth to the seventh of a chord that holds the root 7/6 (its inversion 12/7), so a
  * dominant seventh chord sounds as 4:5:6:7; a minor third without that root stays 6/5.
@@ -88,6 +90,8 @@ function tableOf(options: IntervalTableOptions): ReadonlyMap<number, ClassEntry>
   } else if (options.minorSeventh === '9/5') {
     table.set(-2, { ratio: '9/5', weight: 0.1 });
     table.set(2, { ratio: '10/9', weight: 0.1 });
+    table.set(-6, { ratio: '36/25', weight: 0.05 });
+    table.set(6, { ratio: '25/18', weight: 0.05 });
   }
   return table;
 }

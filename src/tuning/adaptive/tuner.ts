@@ -48,7 +48,7 @@ interface Level {
   /** Weight of the group's intervals to held notes: how much a shift would cost in purity. */
   held: number;
   count: number;
-  /** (table − pitch) of every held note and of the group's notes as shaped. */
+  /** (table − pitch) of each spelled pitch class sounding: the held notes' and the group's as shaped. */
   readonly offsets: number[];
   recentWeight: number;
   recentPull: number;
@@ -86,10 +86,14 @@ function levelShift(level: Level, anchor: number, snap: number): number {
   return (w * shift + s * lattice) / (w + s);
 }
 
+/** The median; of an even count, whichever middle value asks for the smaller shift (the lower on a tie). */
 function median(values: number[]): number {
   values.sort((p, q) => p - q);
   const mid = values.length >> 1;
-  return values.length % 2 === 1 ? values[mid]! : (values[mid - 1]! + values[mid]!) / 2;
+  if (values.length % 2 === 1) return values[mid]!;
+  const low = values[mid - 1]!;
+  const high = values[mid]!;
+  return Math.abs(high) < Math.abs(low) ? high : low;
 }
 
 function add(array: Float64Array, index: number, amount: number): void {
@@ -216,16 +220,19 @@ export class AdaptiveTuner {
     // 2. level, per group of new notes joined by intervals
     const { anchor, snap, recentWeight, recentHalfLifeMs } = this.settings;
     // Offsets (table − pitch) of what sounds: the held notes and each group's new notes.
-    const heldOff = held.map((h) => this.tableCents(h.pitch) - h.cents);
-    const groups = new Map<number, Level>();
+    // One offset per spelled pitch class: a doubled note does not outvote the others.
+    const heldOff = new Map<number, number>();
+    for (const h of held) if (!heldOff.has(h.pitch.fifths)) heldOff.set(h.pitch.fifths, this.tableCents(h.pitch) - h.cents);
+    const groups = new Map<number, Level & { classes: Map<number, number> }>();
     for (let i = 0; i < n; i++) {
       const g = root(i);
       let level = groups.get(g);
-      if (!level) groups.set(g, (level = { held: 0, count: 0, offsets: [...heldOff], recentWeight: 0, recentPull: 0 }));
+      if (!level) groups.set(g, (level = { held: 0, count: 0, offsets: [], classes: new Map(heldOff), recentWeight: 0, recentPull: 0 }));
       level.held += heldWeight[i]!;
-      level.offsets.push(tableCents[i]! - x[i]!);
+      if (!level.classes.has(notes[i]!.pitch.fifths)) level.classes.set(notes[i]!.pitch.fifths, tableCents[i]! - x[i]!);
       level.count++;
     }
+    for (const level of groups.values()) level.offsets.push(...level.classes.values());
     for (let i = 0; i < n; i++) {
       const level = groups.get(root(i))!;
       if (level.held > 0 && !this.settings.recentWhileHeld) continue;
