@@ -41,8 +41,8 @@ export interface AdaptiveSettings {
 export const DEFAULT_ADAPTIVE: AdaptiveSettings = {
   limit: 5,
   minorSeventh: '9/5',
-  anchor: 0.6,
-  snap: 1.5,
+  anchor: 0.8,
+  snap: 2,
   recentWeight: 0.05,
   recentWhileHeld: false,
   recentHalfLifeMs: 500,
