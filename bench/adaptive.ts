@@ -192,8 +192,8 @@ interface Row {
 /** The player's drift setting at three points: the default, "pure now" and "no drift". */
 const VARIANTS: ReadonlyArray<readonly [string, Partial<AdaptiveSettings>]> = [
   ['just-adaptive', {}],
-  ['  anchor 0', { anchor: 0, snap: 0 }],
-  ['  anchor 3', { anchor: 3 }],
+  ['  pure now', { anchor: 0, snap: 0 }],
+  ['  no drift', { anchor: 3 }],
 ];
 
 function rowsFor(group: Pieces, table: Tuning, fixed: ReadonlyArray<readonly [string, Tuning]>) {
