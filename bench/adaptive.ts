@@ -65,7 +65,7 @@ export interface AdaptiveRun {
   readonly events: SoundingEvent[];
   /** Microseconds per `chordOn` call, divided by its notes. */
   readonly costPerNote: number[];
-  /** Sounding notes whose pitch, asked again after a later note, differed from the one they were given. */
+  /** Sounding notes whose pitch, asked again after a later note, differed from the one last reported (given, or by `tick`). */
   readonly movedInTuner: number;
   readonly compromises: number;
 }
@@ -86,6 +86,11 @@ export function runAdaptive(notes: readonly WrittenNote[], table: Tuning, settin
   const given = new Map<number | string, number>();
   let movedInTuner = 0;
   for (const { time, ons, offs } of timeline(notes)) {
+    for (const moved of tuner.tick(time)) {
+      if (given.get(moved.id) === moved.hz) continue;
+      given.set(moved.id, moved.hz);
+      events.push({ kind: 'change', time, id: moved.id, hz: moved.hz });
+    }
     for (const n of offs) {
       follow?.noteOff(context(n, time));
       tuner.noteOff(time, n.id);

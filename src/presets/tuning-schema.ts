@@ -50,6 +50,8 @@ const justAdaptivePresetSchema = z.strictObject({
     recentHalfLifeMs: z.number().positive().optional(),
     phraseGapMs: nonNegative.optional(),
     compromiseCents: nonNegative.optional(),
+    glideCentsPerSecond: nonNegative.optional(),
+    glideMaxCents: nonNegative.optional(),
   }).optional(),
 });
 

@@ -281,3 +281,54 @@ describe('the just-adaptive preset', () => {
     if (isAdaptive(table)) expect(table.settings).toEqual(DEFAULT_ADAPTIVE);
   });
 });
+
+describe('adaptive just intonation: the glide option', () => {
+  it('moves held notes together, within the rate and the limit, keeping their intervals, and holds the pump near the table', () => {
+    const rate = 20;
+    const max = 10;
+    const t = tuner({ anchor: 0, snap: 0, recentWeight: 0, glideCentsPerSecond: rate, glideMaxCents: max });
+    const onset = new Map<number | string, number>();
+    const last = new Map<number | string, number>();
+    let time = 0;
+    let held = new Map<string, AdaptedNote>();
+    const tonic: number[] = [];
+    for (const step of pump(8, true)) {
+      const names = DIATONIC[step.chord]![1].split(' ');
+      for (const [name, n] of held) if (!names.includes(name)) {
+        t.noteOff(time, n.id);
+        held.delete(name);
+      }
+      const placed = chord(t, time, names.filter((n) => !held.has(n)).join(' '));
+      for (const n of placed.values()) onset.set(n.id, n.cents), last.set(n.id, n.cents);
+      held = new Map([...held, ...placed]);
+      if (placed.has('C3')) tonic.push(note(placed, 'C3').fromTable);
+      for (let k = 0; k < 12; k++) {
+        time += 50;
+        const moved = t.tick(time);
+        for (const n of moved) {
+          expect(Math.abs(n.cents - last.get(n.id)!)).toBeLessThanOrEqual((rate * 50) / 1000 + 1e-9);
+          expect(Math.abs(n.cents - onset.get(n.id)!)).toBeLessThanOrEqual(max + 1e-9);
+          last.set(n.id, n.cents);
+        }
+        // every consonance sounding stays pure: the glide moves all notes by the same amount
+        const now = new Map(t.soundingNotes().map((n) => [formatSpelledPitch(n.pitch), n]));
+        if (now.has('C3') && now.has('G4')) expect(Math.abs(size(note(now, 'C3'), note(now, 'G4')) - cents('3/1'))).toBeLessThan(0.01);
+        if (now.has('D3') && now.has('A4')) expect(Math.abs(size(note(now, 'D3'), note(now, 'A4')) - cents('3/1'))).toBeLessThan(0.01);
+      }
+      held = new Map(t.soundingNotes().map((n) => [formatSpelledPitch(n.pitch), n]));
+    }
+    expect(tonic).toHaveLength(9);
+    // pure now without the glide sinks a comma a round (8 commas here, as the drift block shows);
+    // the glide gives back all but a small part of each comma while the chords sound
+    const perRound = (tonic.at(-1)! - tonic[1]!) / 7;
+    expect(Math.abs(perRound)).toBeLessThan(SYNTONIC_COMMA / 8);
+    expect(Math.abs(tonic.at(-1)!)).toBeLessThan(2 * SYNTONIC_COMMA);
+  });
+
+  it('is off by default: tick never moves a note', () => {
+    const t = tuner();
+    chord(t, 0, 'C3 E4 G4 C5');
+    chord(t, 100, 'A2');
+    expect(t.tick(5000)).toEqual([]);
+  });
+});

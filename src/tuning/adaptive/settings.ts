@@ -33,6 +33,13 @@ export interface AdaptiveSettings {
    * and the level returns to the fixed table of the key.
    */
   readonly phraseGapMs: number;
+  /**
+   * Glide, for organ-like sustained chords: held notes move together toward the table's level by
+   * at most this many cents a second (0: off, the default; held notes never move).
+   */
+  readonly glideCentsPerSecond: number;
+  /** How far the glide may take a note from the pitch it began at. */
+  readonly glideMaxCents: number;
   /** A note whose octaves, fifths, fourths, thirds or sixths with the notes sounding miss pure by more than this many cents is counted as a compromise. */
   readonly compromiseCents: number;
 }
@@ -48,4 +55,6 @@ export const DEFAULT_ADAPTIVE: AdaptiveSettings = {
   recentHalfLifeMs: 500,
   phraseGapMs: 300,
   compromiseCents: 0.5,
+  glideCentsPerSecond: 0,
+  glideMaxCents: 10,
 };

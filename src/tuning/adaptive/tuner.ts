@@ -140,6 +140,11 @@ export class AdaptiveTuner {
   private tonicTable: Tuning;
   private readonly tableCache = new Map<number, Map<number, number>>();
   private readonly sounding = new Map<AdaptiveNoteId, AdaptedNote>();
+  /** Glide (off by default): a common offset every sounding note follows from its onset on. */
+  private glide = 0;
+  private glideTarget = 0;
+  private glideClock = -Infinity;
+  private readonly glideAt = new Map<AdaptiveNoteId, number>();
   private recent: Released[] = [];
   private silentSince = -Infinity;
   private counts = { notes: 0, compromises: 0, phrases: 0 };
@@ -178,7 +183,7 @@ export class AdaptiveTuner {
     for (const n of notes) if (this.sounding.has(n.id)) this.noteOff(time, n.id);
     if (notes.length === 0) return [];
     this.forget(time);
-    const held = [...this.sounding.values()];
+    const held = this.soundingNotes();
     const present = new Set<number>([...held.map((h) => h.pitch.fifths), ...notes.map((n) => n.pitch.fifths)]);
     const n = notes.length;
     const tableCents = notes.map((note) => this.tableCents(note.pitch));
@@ -270,32 +275,81 @@ export class AdaptiveTuner {
       for (let k = 0; k < n; k++) if (k !== i) check(notes[k]!.pitch, x[k]!);
       const note: AdaptedNote = { id, pitch, cents: c, hz: this.reference.hz.valueOf() * 2 ** (c / 1200), fromTable: c - tableCents[i]!, compromise };
       this.sounding.set(id, note);
+      this.glideAt.set(id, this.glide);
       placed.push(note);
       this.counts.notes++;
       if (compromise) this.counts.compromises++;
     }
+    this.aimGlide();
     return placed;
   }
 
   /** A note ends; it is remembered, with a fading weight, as a note just heard. */
   noteOff(time: number, id: AdaptiveNoteId): void {
-    const note = this.sounding.get(id);
+    const note = this.current(id);
     if (!note) return;
     this.sounding.delete(id);
+    this.glideAt.delete(id);
     this.recent.push({ pitch: note.pitch, cents: note.cents, off: time });
     if (this.sounding.size === 0) this.silentSince = time;
+    this.aimGlide();
+  }
+
+  /**
+   * Lets time pass for the glide (`glideCentsPerSecond` > 0): every sounding note moves by the
+   * same amount toward the level of the fixed table, at most `glideMaxCents` from where it began,
+   * so the sounding intervals stay as they are. Returns the notes whose pitch changed (none with
+   * the glide off). Call it before `chordOn` and `noteOff` at the same time.
+   */
+  tick(time: number): AdaptedNote[] {
+    const { glideCentsPerSecond: rate, glideMaxCents: max } = this.settings;
+    const elapsed = time - this.glideClock;
+    this.glideClock = time;
+    if (rate <= 0 || this.sounding.size === 0 || !(elapsed > 0)) return [];
+    let low = -Infinity;
+    let high = Infinity;
+    for (const at of this.glideAt.values()) {
+      low = Math.max(low, at - max);
+      high = Math.min(high, at + max);
+    }
+    const want = Math.min(high, Math.max(low, this.glideTarget));
+    const step = (rate * elapsed) / 1000;
+    const next = want > this.glide ? Math.min(want, this.glide + step) : Math.max(want, this.glide - step);
+    if (next === this.glide) return [];
+    this.glide = next;
+    return this.soundingNotes();
+  }
+
+  /** Where the glide heads: the common offset that puts what sounds on the table (its median, per pitch class). */
+  private aimGlide(): void {
+    if (this.settings.glideCentsPerSecond <= 0) return;
+    const offsets = new Map<number, number>();
+    for (const n of this.soundingNotes()) if (!offsets.has(n.pitch.fifths)) offsets.set(n.pitch.fifths, this.tableCents(n.pitch) - n.cents);
+    this.glideTarget = offsets.size === 0 ? this.glide : this.glide + median([...offsets.values()]);
+  }
+
+  /** A sounding note as it sounds now (moved by the glide since its onset). */
+  private current(id: AdaptiveNoteId): AdaptedNote | undefined {
+    const note = this.sounding.get(id);
+    const moved = note && this.glide - (this.glideAt.get(id) ?? this.glide);
+    if (!note || !moved) return note;
+    const cents = note.cents + moved;
+    return { ...note, cents, hz: this.reference.hz.valueOf() * 2 ** (cents / 1200), fromTable: note.fromTable + moved };
   }
 
   /** Everything ends and is forgotten (panic, a new piece): the next note starts a phrase. */
   reset(): void {
     this.sounding.clear();
+    this.glideAt.clear();
+    this.glide = 0;
+    this.glideTarget = 0;
     this.recent = [];
     this.silentSince = -Infinity;
   }
 
-  /** The notes sounding, with the pitches they were given. */
+  /** The notes sounding, with the pitches they were given (and, with the glide on, have glided to). */
   soundingNotes(): AdaptedNote[] {
-    return [...this.sounding.values()];
+    return [...this.sounding.keys()].map((id) => this.current(id)!);
   }
 
   /** Where a spelling would sound in silence: the fixed table of the current key (charts, previews). */
