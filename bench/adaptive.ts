@@ -194,17 +194,22 @@ interface Row {
   readonly moved?: number;
 }
 
-/** The player's drift setting at three points: the default, "pure now" and "no drift". */
-const VARIANTS: ReadonlyArray<readonly [string, Partial<AdaptiveSettings>]> = [
-  ['just-adaptive', {}],
-  ['  pure now', { anchor: 0, snap: 0 }],
-  ['  no drift', { anchor: 3 }],
+/**
+ * The player's drift setting at three points (the default, "pure now" and "no drift"), each with
+ * the table on the piece's key as a player declares it; and the default with the table following
+ * the follow speller's key estimate instead.
+ */
+const VARIANTS: ReadonlyArray<readonly [string, Partial<AdaptiveSettings>, 'declared' | 'followed']> = [
+  ['just-adaptive', {}, 'declared'],
+  ['  pure now', { anchor: 0, snap: 0 }, 'declared'],
+  ['  no drift', { anchor: 3 }, 'declared'],
+  ['  key followed', {}, 'followed'],
 ];
 
 function rowsFor(group: Pieces, table: Tuning, fixed: ReadonlyArray<readonly [string, Tuning]>) {
   const cost: number[] = [];
   const rows: Row[] = [];
-  for (const [label, settings] of VARIANTS) {
+  for (const [label, settings, key] of VARIANTS) {
     const events: SoundingEvent[][] = [];
     const drift: number[] = [];
     let moved = 0;
@@ -213,7 +218,7 @@ function rowsFor(group: Pieces, table: Tuning, fixed: ReadonlyArray<readonly [st
     for (const piece of group.pieces) {
       if (piece.notes.length === 0) continue;
       const tonic = tonicOf(piece.notes);
-      const run = runAdaptive(piece.notes, table, settings, tonic);
+      const run = runAdaptive(piece.notes, table, settings, key === 'declared' ? tonic : undefined);
       events.push(run.events);
       if (label === 'just-adaptive') cost.push(...run.costPerNote);
       moved += run.movedInTuner;
