@@ -1,6 +1,7 @@
 // Prints the project's figures; nothing here is asserted (tests assert behaviour, not time).
 // `npm run bench` runs everything with a one-minute soak; `npm run bench:soak` the ten-minute one.
 import { disableMidi } from '../src/io/midi-system.js';
+import { benchAdaptive } from './adaptive.js';
 import { benchAudio } from './audio.js';
 import { benchFuzz } from './fuzz.js';
 import { benchLatency, benchSoak } from './live.js';
@@ -15,6 +16,7 @@ if (!soakOnly) {
   benchTuning();
   benchRouter();
   benchSpelling();
+  benchAdaptive();
   benchAudio();
   await benchLatency();
   await benchFuzz();

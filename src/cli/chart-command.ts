@@ -3,7 +3,8 @@ import { buildChart, chartJson } from '../chart/chart.js';
 import { chartCsv, chartText } from '../chart/chart-text.js';
 import { parseFifthsRange } from '../pitch/index.js';
 import { loadTuningPreset } from '../presets/tuning-presets.js';
-import { A440, DEFAULT_WOLF_LIMITS, frequency, parseReference } from '../tuning/index.js';
+import { A440, DEFAULT_WOLF_LIMITS, frequency, isAdaptive, parseReference } from '../tuning/index.js';
+import { describeAdaptive } from '../tuning/adaptive/describe.js';
 import { dyadStartTimes, renderDyads } from '../audio/preview.js';
 import { chartSvg } from '../chart/chart-svg.js';
 import { formatSpelledPitch } from '../pitch/index.js';
@@ -64,7 +65,9 @@ export function registerChart(program: Command, io: CommandIo): void {
       }
       if (options.json) {
         const meta = { id: preset.id, name: preset.name, kind: preset.kind, source: preset.source };
-        io.stdout.write(JSON.stringify(chartJson(chart, meta), null, 2) + '\n');
+        const json = chartJson(chart, meta) as Record<string, unknown>;
+        const adaptive = isAdaptive(preset.tuning) ? { adaptive: { explanation: describeAdaptive(preset.tuning.settings).join(' '), settings: preset.tuning.settings } } : {};
+        io.stdout.write(JSON.stringify({ ...json, ...adaptive }, null, 2) + '\n');
       } else if (options.csv !== undefined) {
         const table = options.csv === true ? 'notes' : options.csv;
         if (table !== 'notes' && table !== 'intervals') throw new UserError(`--csv "${table}" must be "notes" or "intervals"`, 2);
@@ -76,7 +79,7 @@ export function registerChart(program: Command, io: CommandIo): void {
             ascii,
             style: makeStyle(wantsColour(io.stdout)),
             title: `${preset.name} (${preset.kind})`,
-            subtitle: preset.source,
+            subtitle: isAdaptive(preset.tuning) ? [preset.source, '', ...describeAdaptive(preset.tuning.settings)].join('\n') : preset.source,
           }),
         );
       }

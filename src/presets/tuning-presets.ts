@@ -2,7 +2,9 @@ import { existsSync, readdirSync } from 'node:fs';
 import { basename, join, resolve, sep } from 'node:path';
 import { packageRoot } from '../util/package-root.js';
 import { chromaOf, formatPitchClass, parsePitchClass, pitchClass, type PitchClass } from '../pitch/index.js';
+import { DEFAULT_ADAPTIVE } from '../tuning/adaptive/settings.js';
 import {
+  adaptiveJustTuning,
   chainToChromaSizes,
   cents,
   circulatingTuning,
@@ -48,6 +50,10 @@ function buildTuning(json: TuningPresetJson, problems: Problem[]): Tuning | unde
       const fifth = collecting(problems, '$.fifth', () => intervalFromSpec(json.fifth, '$.fifth'));
       const origin = pc(problems, '$.origin', json.origin, c);
       return fifth && regularTuning(fifth, origin);
+    }
+    case 'just-adaptive': {
+      const table = buildTuning({ ...json, kind: 'just' }, problems);
+      return table && adaptiveJustTuning(table, { ...DEFAULT_ADAPTIVE, ...json.adaptive });
     }
     case 'just': {
       const tonic = pc(problems, '$.tonic', json.tonic, c);

@@ -32,6 +32,29 @@ const justPresetSchema = z.strictObject({
   degrees: z.record(z.string(), z.string()).refine((d) => Object.keys(d).length > 0, 'must list at least the tonic'),
 });
 
+const nonNegative = z.number().nonnegative();
+
+/** Adaptive just intonation: a just table (as `just`) behind a tuner whose settings are listed here (all optional). */
+const justAdaptivePresetSchema = z.strictObject({
+  ...common,
+  kind: z.literal('just-adaptive'),
+  tonic: z.string().optional(),
+  degrees: z.record(z.string(), z.string()).refine((d) => Object.keys(d).length > 0, 'must list at least the tonic'),
+  adaptive: z.strictObject({
+    limit: z.union([z.literal(5), z.literal(7)], { error: 'must be 5 or 7' }).optional(),
+    minorSeventh: z.enum(['16/9', '9/5']).optional(),
+    anchor: nonNegative.optional(),
+    snap: nonNegative.optional(),
+    recentWeight: nonNegative.optional(),
+    recentWhileHeld: z.boolean().optional(),
+    recentHalfLifeMs: z.number().positive().optional(),
+    phraseGapMs: nonNegative.optional(),
+    compromiseCents: nonNegative.optional(),
+    glideCentsPerSecond: nonNegative.optional(),
+    glideMaxCents: nonNegative.optional(),
+  }).optional(),
+});
+
 const circulatingPresetSchema = z.strictObject({
   ...common,
   kind: z.literal('circulating'),
@@ -40,8 +63,8 @@ const circulatingPresetSchema = z.strictObject({
   cents: z.record(z.string(), z.union([z.number(), z.string()])).optional(),
 }).refine((p) => (p.chain === undefined) !== (p.cents === undefined), { error: 'give either "chain" or "cents", not both or neither' });
 
-export const tuningPresetSchema = z.discriminatedUnion('kind', [regularPresetSchema, justPresetSchema, circulatingPresetSchema], {
-  error: 'kind must be "regular", "just" or "circulating"',
+export const tuningPresetSchema = z.discriminatedUnion('kind', [regularPresetSchema, justPresetSchema, circulatingPresetSchema, justAdaptivePresetSchema], {
+  error: 'kind must be "regular", "just", "circulating" or "just-adaptive"',
 });
 
 export type TuningPresetJson = z.infer<typeof tuningPresetSchema>;

@@ -1,8 +1,9 @@
 import { chromaOf, octavesFromC4, pitchClass, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import { cents, multiply, power, ratio, UNISON, type PitchRatio } from './ratio.js';
 import { PURE_FIFTH } from './interval-spec.js';
+import type { AdaptiveSettings } from './adaptive/settings.js';
 
-export type TuningKind = 'regular' | 'just' | 'circulating';
+export type TuningKind = 'regular' | 'just' | 'circulating' | 'just-adaptive';
 
 /**
  * A tuning gives every spelled pitch an exact size. Sizes are measured from C4 and split as
@@ -76,6 +77,32 @@ export function justTuning(degrees: ReadonlyMap<number, PitchRatio>, tonic: Pitc
     withTonic: (next) => (next.fifths === tonic.fifths ? tuning : justTuning(degrees, next)),
   };
   return tuning;
+}
+
+/**
+ * Adaptive just intonation: pitches follow the harmony (an `AdaptiveTuner` places each note
+ * against what sounds); the tuning itself is the fixed just table behind it, used where nothing
+ * sounds (charts, previews, the level the tuner returns to), plus the tuner's settings.
+ */
+export interface AdaptiveJustTuning extends Tuning {
+  readonly kind: 'just-adaptive';
+  readonly settings: AdaptiveSettings;
+  withTonic(tonic: PitchClass): AdaptiveJustTuning;
+}
+
+export function adaptiveJustTuning(table: Tuning, settings: AdaptiveSettings): AdaptiveJustTuning {
+  const tuning: AdaptiveJustTuning = {
+    kind: 'just-adaptive',
+    origin: table.origin,
+    settings,
+    classSize: (pc) => table.classSize(pc),
+    withTonic: (tonic) => (tonic.fifths === table.origin.fifths ? tuning : adaptiveJustTuning(table.withTonic(tonic), settings)),
+  };
+  return tuning;
+}
+
+export function isAdaptive(tuning: Tuning): tuning is AdaptiveJustTuning {
+  return tuning.kind === 'just-adaptive';
 }
 
 /**

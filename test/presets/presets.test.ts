@@ -5,6 +5,7 @@ import { builtInTuningIds, checkTuningPreset, loadBuiltInTuningPresets, loadTuni
 import { tempDir } from '../support/temp.js';
 
 const REQUIRED_IDS = [
+  'just-adaptive',
   'pythagorean',
   'meantone-1-3',
   'meantone-2-7',
