@@ -12,7 +12,7 @@ import { formatKey, parseKey, type DeclaredKey } from '../spelling/keys.js';
 
 const C_MAJOR: DeclaredKey = { tonic: { fifths: 0 }, mode: 'major' };
 import { createStrategy, STRATEGIES, STRATEGY_ENTRIES, type Strategy } from '../spelling/strategy.js';
-import { A440, parseReference } from '../tuning/index.js';
+import { A440, isAdaptive, parseReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
 import { integerOption, numberOption } from './options.js';
 
@@ -127,7 +127,10 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const key = cli.key !== undefined ? parseKey(cli.key, '--key') : setup?.key;
   if (strategy === 'key' && key === undefined) throw new UserError('--spelling key needs --key, as in --key "D minor"', 2);
   const window = cli.window !== undefined ? parseWindow(cli.window, '--window') : setup?.window;
-  const speller = new ControlledSpeller(createStrategy({ strategy, window, key, follow: json?.spelling?.follow }), setup?.splits ?? []);
+  const speller = new ControlledSpeller(createStrategy({ strategy, window, key, follow: json?.spelling?.follow }), setup?.splits ?? [], key);
+  if (isAdaptive(preset.tuning) && (mode === 'mts-octave' || mode === 'samples')) {
+    throw new UserError(`${preset.id} gives every note its own pitch: use --mode bend or mts-note (--mode ${mode} tunes key classes or fixed samples, so held notes would move)`, 2);
+  }
   const octaveForm = cli.octaveForm ?? (json?.output?.octaveForm === undefined ? undefined : String(json.output.octaveForm));
   const options: EngineOptionsInput = {
     tuning: preset.tuning,

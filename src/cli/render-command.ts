@@ -23,6 +23,7 @@ export function summaryText(summary: RenderSummary, header: string): string {
     ['out of range', summary.outOfRange ? `${summary.outOfRange} notes needed more than the output can tune` : '0'],
     ['bytes out/in', summary.bytesPerInputByte.toFixed(3)],
   ];
+  if (summary.compromises) rows.push(['compromises', `${summary.compromises} notes could not make every interval pure`]);
   if (summary.substitutions) rows.push(['substituted', `${summary.substitutions} notes played as the nearest spelling the sample set has`]);
   if (summary.malformedBytes) rows.push(['malformed bytes', `${summary.malformedBytes} ignored`]);
   return [header, ...rows.map(([k, v]) => `  ${k.padEnd(16)}${v}`)].join('\n') + '\n';

@@ -45,26 +45,34 @@ export function registerSpell(program: Command, io: CommandIo): void {
     const names = { accidentals: cli.ascii ? ('ascii' as const) : ('unicode' as const) };
     const style = makeStyle(wantsColour(io.stdout));
     io.stdout.write(style.bold(`${input}: ${describeSetup(preset.name, engine.options)}, spelling ${spellingLabel}`) + '\n');
-    io.stdout.write(
-      renderTable(
-        [
-          { header: 'time', align: 'right' },
-          { header: 'tick', align: 'right' },
-          { header: 'key', align: 'right' },
-          { header: 'ch', align: 'right' },
-          { header: 'spelling', align: 'left' },
-          { header: 'Hz', align: 'right' },
-          { header: 'cents', align: 'right' },
-        ],
-        report.rows.map((r) => [r.time.toFixed(3), String(r.tick), String(r.key), String(r.channel), formatSpelledPitch(r.pitch, names), r.hz.toFixed(3), signed(r.cents, 2, cli.ascii)]),
-        style.bold,
-      ) + '\n\n',
-    );
+    const adaptive = report.rows.some((r) => r.fromTable !== undefined);
+    const columns = [
+      { header: 'time', align: 'right' as const },
+      { header: 'tick', align: 'right' as const },
+      { header: 'key', align: 'right' as const },
+      { header: 'ch', align: 'right' as const },
+      { header: 'spelling', align: 'left' as const },
+      { header: 'Hz', align: 'right' as const },
+      { header: 'cents', align: 'right' as const },
+      ...(adaptive ? [{ header: 'from table', align: 'right' as const }] : []),
+    ];
+    const rows = report.rows.map((r) => [
+      r.time.toFixed(3),
+      String(r.tick),
+      String(r.key),
+      String(r.channel),
+      formatSpelledPitch(r.pitch, names),
+      r.hz.toFixed(3),
+      signed(r.cents, 2, cli.ascii),
+      ...(adaptive ? [signed(r.fromTable ?? 0, 2, cli.ascii)] : []),
+    ]);
+    io.stdout.write(renderTable(columns, rows, style.bold) + '\n\n');
     const { tally } = engine;
     const extra = [
       tally.notesDropped ? `${tally.notesDropped} dropped (their tuned key lies outside 0–127)` : '',
       tally.substitutions ? `${tally.substitutions} played as the nearest spelling the sample set has` : '',
       tally.outOfRange ? `${tally.outOfRange} beyond what the output can tune` : '',
+      tally.compromises ? `${tally.compromises} placed at a compromise pitch` : '',
     ].filter(Boolean);
     io.stdout.write(`${report.rows.length} notes${extra.length ? `; ${extra.join('; ')}` : ''}\n` + report.summaryText(names));
   });

@@ -22,6 +22,8 @@ export interface RenderSummary {
   readonly retunes: number;
   readonly steals: number;
   readonly outOfRange: number;
+  /** Adaptive tunings: notes placed at a compromise pitch. */
+  readonly compromises: number;
   readonly malformedBytes: number;
   /** Bytes sent per byte received while playing (set-up and the closing panic excluded). */
   readonly bytesPerInputByte: number;
@@ -97,6 +99,7 @@ export function renderEvents(
       retunes: tally.retunes,
       steals: tally.steals,
       outOfRange: tally.outOfRange,
+      compromises: tally.compromises,
       malformedBytes: tally.malformedBytes,
       bytesPerInputByte: bytesIn === 0 ? 0 : bytesOut / bytesIn,
       wholeBytesPerInputByte: bytesIn === 0 ? 0 : bytesAll / bytesIn,

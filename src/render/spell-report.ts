@@ -17,6 +17,8 @@ export interface SpellRow {
   readonly hz: number;
   /** Cents from the 12-ET pitch of the same key at the same reference. */
   readonly cents: number;
+  /** Adaptive tunings: cents from the same spelling in the fixed table. */
+  readonly fromTable: number | undefined;
 }
 
 /** The intervals the wolf list watches, by keys apart (octaves folded), with their pure ratios (common practice, no source). */
@@ -69,6 +71,7 @@ export class SpellReport {
       pitch: event.pitch,
       hz: event.hz,
       cents: event.cents,
+      fromTable: event.adaptive?.fromTable,
     };
     for (const other of this.held.values()) this.checkPair(other, row);
     this.held.set(event.id, row);
@@ -111,7 +114,7 @@ export class SpellReport {
   /** The rows as JSON Lines (the documented fields). */
   jsonLines(): string {
     return this.rows
-      .map((r) => JSON.stringify({ tick: r.tick, time: r.time, key: r.key, channel: r.channel, spelling: formatSpelledPitch(r.pitch), hz: r.hz, cents: r.cents }))
+      .map((r) => JSON.stringify({ tick: r.tick, time: r.time, key: r.key, channel: r.channel, spelling: formatSpelledPitch(r.pitch), hz: r.hz, cents: r.cents, ...(r.fromTable === undefined ? {} : { fromTable: r.fromTable }) }))
       .join('\n') + (this.rows.length ? '\n' : '');
   }
 

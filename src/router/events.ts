@@ -21,6 +21,8 @@ export type RouterEvent =
       /** From 12-ET at the reference. */
       readonly cents: number;
       readonly placement: Placement;
+      /** Adaptive tunings: cents from the same spelling in the fixed table, and whether it is a compromise. */
+      readonly adaptive?: { readonly fromTable: number; readonly compromise: boolean } | undefined;
     }
   | { readonly type: 'key-up'; readonly time: number; readonly id: NoteId }
   | { readonly type: 'voice-ended'; readonly time: number; readonly id: NoteId; readonly placement: Placement; readonly cause: EndCause }

@@ -5,6 +5,7 @@ import { BEND_CENTRE } from '../midi/pitch-bend.js';
 import { keyOf, spellKey, type SpelledPitch } from '../pitch/index.js';
 import type { ControlMap, EngineActions, Firing } from '../spelling/control-map.js';
 import type { NoteContext, Speller } from '../spelling/speller.js';
+import type { AdaptedTunedNote, AdaptivePitches } from './adaptive-pitches.js';
 import { ChordGatherer, type GatherSetting } from './chord-gatherer.js';
 import type { RouterEvent } from './events.js';
 import { isParameterController, KeyboardState } from './keyboard-state.js';
@@ -29,6 +30,8 @@ export interface RouterSetup {
   /** The player's pedals, key switches and program changes bound to actions. */
   readonly controls?: ControlMap | undefined;
   readonly gather?: GatherSetting | undefined;
+  /** For adaptive tunings: pitches that follow the harmony instead of the table. */
+  readonly adaptive?: AdaptivePitches | undefined;
   /** Hears every decision; displays, logs, reports and counters are folds over these events. */
   readonly observer?: ((event: RouterEvent) => void) | undefined;
 }
@@ -74,6 +77,7 @@ export class Router {
       noteOff: (voice, velocity) => this.emit(noteOff(voice.placement.channel, voice.placement.key, velocity)),
       ended: (voice, cause) => {
         if (cause !== 'stolen' && cause !== 'panic') output.voiceEnded(voice.placement, this.now);
+        setup.adaptive?.ended(this.now, voice.id);
         observe?.({ type: 'voice-ended', time: this.now, id: voice.id, placement: voice.placement, cause });
       },
     }));
@@ -214,7 +218,7 @@ export class Router {
       // ends them: lift it, end every pedal-held voice, and put the pedals that are down back.
       this.toZone(CC.sustain, 0);
       this.toZone(CC.sostenuto, 0);
-      this.book.endPedalHeld('source-gone');
+      this.book.repedal('source-gone');
       if (this.book.sustainDown) this.toZone(CC.sustain, 127);
       if (this.book.sostenutoDown) this.toZone(CC.sostenuto, 127);
     } else {
@@ -291,21 +295,26 @@ export class Router {
     const notes = this.gatherer.take();
     for (const n of notes) if (this.book.isDown(n.id)) this.keyUp(n.id, 0); // a second note-on without its note-off: release the first
     const speller = this.setup.speller;
-    const pitches = speller.spell(notes.map((n) => this.contextOf(n.id, n.velocity)));
-    for (let i = 0; i < notes.length; i++) {
-      const { id, velocity } = notes[i]!;
-      const key = keyOfNote(id);
-      let pitch = pitches[i];
-      if (pitch === undefined || keyOf(pitch) !== key) pitch = spellKey(speller.currentWindow(), key); // never trust a speller blindly
-      this.sound(id, pitch, velocity);
+    const spelled = speller.spell(notes.map((n) => this.contextOf(n.id, n.velocity)));
+    const pitches = notes.map((n, i) => {
+      const pitch = spelled[i];
+      return pitch === undefined || keyOf(pitch) !== keyOfNote(n.id) ? spellKey(speller.currentWindow(), keyOfNote(n.id)) : pitch; // never trust a speller blindly
+    });
+    const adaptive = this.setup.adaptive;
+    if (adaptive && !this.passThrough) {
+      adaptive.setTonic(speller.declaredTonic?.());
+      const tuned = adaptive.tuneChord(this.now, notes.map((n, i) => ({ id: n.id, pitch: pitches[i]! })));
+      notes.forEach((n, i) => this.sound(n.id, pitches[i]!, n.velocity, tuned[i]));
+      return;
     }
+    notes.forEach((n, i) => this.sound(n.id, pitches[i]!, n.velocity));
   }
 
   /** Tunes, places and starts one note (as the output can sound it: a sample set may lack a spelling). */
-  private sound(id: NoteId, wanted: SpelledPitch, velocity: number): void {
+  private sound(id: NoteId, wanted: SpelledPitch, velocity: number, adapted?: AdaptedTunedNote): void {
     const output = this.setup.output;
     const pitch = output.available ? output.available(wanted) : wanted;
-    const tuned = this.tables.now(this.passThrough, () => this.setup.speller.currentTonic()).tune(pitch);
+    const tuned = adapted ?? this.tables.now(this.passThrough, () => this.setup.speller.currentTonic()).tune(pitch);
     this.refusal = undefined;
     const placement = output.place(tuned, this.now, this.context);
     if (!placement) {
@@ -314,7 +323,8 @@ export class Router {
     }
     this.book.start({ id, pitch, velocity, placement, state: 'held', silenced: false }); // releases a voice on the same synth key first
     this.emit(noteOn(placement.channel, placement.key, velocity));
-    this.observe?.({ type: 'note', time: this.now, id, velocity, pitch, wanted: pitch === wanted ? undefined : wanted, hz: tuned.hz, cents: tuned.etCents, placement });
+    const adaptive = adapted && { fromTable: adapted.fromTable, compromise: adapted.compromise };
+    this.observe?.({ type: 'note', time: this.now, id, velocity, pitch, wanted: pitch === wanted ? undefined : wanted, hz: tuned.hz, cents: tuned.etCents, placement, adaptive });
   }
 
   private keyUp(id: NoteId, velocity: number): void {
@@ -423,6 +433,7 @@ export class Router {
       this.emit(controlChange(c, CC.allNotesOff, 0));
     }
     this.setup.output.panic(this.context, this.now);
+    this.setup.adaptive?.reset();
     this.observe?.({ type: 'panic', time: this.now, reason });
   }
 }

@@ -2,7 +2,8 @@ import { DEFAULT_WINDOW, type KeyboardWindow } from '../pitch/index.js';
 import { ControlMap } from '../spelling/control-map.js';
 import { ControlledSpeller } from '../spelling/controlled.js';
 import { fixedSpeller, type Speller } from '../spelling/speller.js';
-import type { Reference, Tuning } from '../tuning/index.js';
+import { isAdaptive, type Reference, type Tuning } from '../tuning/index.js';
+import { AdaptivePitches } from './adaptive-pitches.js';
 import type { GatherSetting } from './chord-gatherer.js';
 import type { RouterEvent } from './events.js';
 import { OUTPUT_MODES, type OutputMode } from './output-modes.js';
@@ -84,6 +85,7 @@ function buildRouter(options: EngineOptions): Router {
   const table = new PitchTable(options.tuning, options.reference, options.synthA4);
   return new Router({
     table,
+    adaptive: isAdaptive(options.tuning) ? new AdaptivePitches(options.tuning, options.reference, options.synthA4) : undefined,
     speller: options.speller,
     output: createOutput(options, table),
     wheelRange: options.wheelRange,

@@ -14,6 +14,8 @@ export class Tally {
   /** Voices ended by steals. */
   stolenVoices = 0;
   panics = 0;
+  /** Adaptive tunings: notes placed at a compromise pitch. */
+  compromises = 0;
   private readonly channels = new Set<number>();
 
   /** Takes one event; pass it as (or inside) the engine's observer. */
@@ -24,6 +26,7 @@ export class Tally {
         this.notesOut++;
         this.channels.add(e.placement.channel);
         if (e.wanted) this.substitutions++;
+        if (e.adaptive?.compromise) this.compromises++;
         return;
       case 'note-dropped':
         this.notesIn++;

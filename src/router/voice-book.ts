@@ -179,9 +179,13 @@ export class VoiceBook {
     return { sustain, sostenuto, heldElsewhere };
   }
 
-  /** Ends every voice a pedal holds (the synth's pedals are about to be lifted). */
-  endPedalHeld(cause: EndCause): void {
+  /**
+   * The synth's pedals are lifted and put down again: every voice a pedal holds ends, and a
+   * sostenuto that goes down again latches the keys held now, as the synth's will.
+   */
+  repedal(cause: EndCause): void {
     for (const voice of this.voices()) if (voice.state === 'pedal') this.end(voice, cause);
+    for (const source of this.sostenutoBy.keys()) this.sostenutoBy.set(source, new Set([...this.sounding].filter((v) => v.state === 'held')));
   }
 
   /** Lets go of every key and lifts every pedal (the end of a file): release tails ring on in the synth. */

@@ -36,7 +36,13 @@ export class ControlledSpeller implements Speller {
   constructor(
     readonly base: Speller,
     private readonly splits: readonly SplitKey[] = [],
+    /** The key the player declared, if any; a set-key control replaces it. */
+    private declared: DeclaredKey | undefined = undefined,
   ) {}
+
+  declaredTonic(): PitchClass | undefined {
+    return this.declared?.tonic;
+  }
 
   private split(note: NoteContext): SpelledPitch | undefined {
     for (const s of this.splits) {
@@ -112,6 +118,7 @@ export class ControlledSpeller implements Speller {
 
   setKey(key: DeclaredKey): void {
     this.shifted = 0;
+    this.declared = key;
     this.base.setKey?.(key);
   }
 }

@@ -25,6 +25,8 @@ export interface Speller {
   currentWindow(): KeyboardWindow;
   /** The tonic of the context, for tunings built on one (just intonation); undefined: the tuning's own. */
   currentTonic(): PitchClass | undefined;
+  /** Optional: the tonic of the key the player declared (`--key`, a set-key control), not an estimate. */
+  declaredTonic?(): PitchClass | undefined;
   /** Optional: jumps to a declared key (a control action). */
   setKey?(key: DeclaredKey): void;
   /** Optional: while frozen the context holds still, nothing heard moves it (a strategy with no context has nothing to freeze). */

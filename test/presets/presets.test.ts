@@ -6,6 +6,8 @@ import { tempDir } from '../support/temp.js';
 
 const REQUIRED_IDS = [
   'just-adaptive',
+  'just-adaptive-pure',
+  'just-adaptive-7',
   'pythagorean',
   'meantone-1-3',
   'meantone-2-7',

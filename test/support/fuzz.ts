@@ -26,18 +26,26 @@ export interface FuzzSetup {
   /** For `bend`. */
   readonly layout: 'mpe' | 'multi';
   readonly strategy: 'fixed' | 'follow';
+  /** A tuning id for every run of this setup; otherwise one is drawn from the seed. */
+  readonly tuning?: string;
 }
 
 /** Every output mode and layout, with fixed and follow spelling. */
-export const FUZZ_SETUPS: readonly FuzzSetup[] = (['fixed', 'follow'] as const).flatMap((strategy) => [
+export const FUZZ_SETUPS: readonly FuzzSetup[] = (['fixed', 'follow'] as const).flatMap((strategy): FuzzSetup[] => [
   { mode: 'bend', layout: 'mpe', strategy },
   { mode: 'bend', layout: 'multi', strategy },
   { mode: 'mts-note', layout: 'mpe', strategy },
   { mode: 'mts-octave', layout: 'mpe', strategy },
   { mode: 'pass', layout: 'mpe', strategy },
-]);
+]).concat(
+  // Adaptive just intonation: every note its own pitch, and no sounding note may move.
+  (['fixed', 'follow'] as const).flatMap((strategy): FuzzSetup[] => [
+    { mode: 'bend', layout: 'mpe', strategy, tuning: 'just-adaptive' },
+    { mode: 'mts-note', layout: 'mpe', strategy, tuning: 'just-adaptive' },
+  ]),
+);
 
-export const describeSetup = (s: FuzzSetup): string => `${s.mode}${s.mode === 'bend' ? ` ${s.layout}` : ''}, ${s.strategy} spelling`;
+export const describeSetup = (s: FuzzSetup): string => `${s.mode}${s.mode === 'bend' ? ` ${s.layout}` : ''}, ${s.strategy} spelling${s.tuning ? `, ${s.tuning}` : ''}`;
 
 export interface FuzzFlags {
   /**
@@ -236,7 +244,7 @@ export function fuzzEngine(setup: FuzzSetup, seed: number, observer?: (e: Router
   const rng = new Prng(seed ^ 0x5eed);
   const few = rng.chance(0.5);
   return {
-    tuning: loadTuningPreset(rng.pick(TUNINGS)).tuning,
+    tuning: loadTuningPreset(setup.tuning ?? rng.pick(TUNINGS)).tuning,
     reference: parseReference(rng.pick(REFERENCES)),
     mode: setup.mode,
     layout: setup.layout,
