@@ -1,6 +1,9 @@
 import { octavesFromC4, type SpelledPitch } from '../../pitch/index.js';
 import { cents, ratio, type PitchRatio } from '../ratio.js';
 import { nearCents } from '../tuning.js';
+import type { Limit, MinorSeventh } from './settings.js';
+
+export type { Limit, MinorSeventh } from './settings.js';
 
 /**
  * What the spelling of an interval asks for: its pure ratio and how much its purity matters.
@@ -41,8 +44,6 @@ export interface IntervalTarget {
   readonly weight: number;
 }
 
-export type Limit = 5 | 7;
-export type MinorSeventh = '16/9' | '9/5';
 
 export interface IntervalTableOptions {
   readonly limit: Limit;

@@ -1,4 +1,7 @@
-import type { Limit, MinorSeventh } from './intervals.js';
+/** Which primes the pure intervals may use. */
+export type Limit = 5 | 7;
+/** The 5-limit minor seventh. */
+export type MinorSeventh = '16/9' | '9/5';
 
 /**
  * The player's settings of adaptive just intonation. Weights are relative to a consonance (a
