@@ -11,8 +11,12 @@ export interface FollowParameters {
   readonly heldWeight: number;
   /** How much better a new key must correlate (0…2) before it replaces the current one. */
   readonly hysteresis: number;
-  /** The key assumed at the start (C major), and its weight as if that many notes had been heard. */
-  readonly initialKey: Key;
+  /**
+   * The key declared for the start, or undefined to start from a guess of C major (whose name
+   * does not bind the first key found: see `namingCentre`); and the weight of the starting key as
+   * if that many notes had been heard in it.
+   */
+  readonly initialKey: Key | undefined;
   readonly initialWeight: number;
   /**
    * The home window: the lowest fifth of the 12-note window the music is written for (−3: E♭..G♯),
@@ -30,8 +34,16 @@ export interface FollowParameters {
   readonly localShare: number;
   /** Weight of a chord's spread on the line of fifths against each note's distance from the centre. */
   readonly chordCompactness: number;
+
   /** How many fifths beyond the key's window a spelling may lie (the key bounds the local pull). */
   readonly windowReach: number;
+  /**
+   * Where a key with two names (C♯ or D♭ major) is named when nothing heard before decides it, as
+   * a position on the line of fifths: the name whose window centre is nearer wins. 4 gives the names
+   * of Baroque keyboard music (C♯ and F♯ major, C♯, D♯ and G♯ minor, but A♭ major and B♭ minor);
+   * 0 gives D♭ and G♭ major and E♭ minor. Once a key is known, a new key takes the name nearer it.
+   */
+  readonly namingCentre: number;
 }
 
 /** A key as the follower estimates it: a tonic on the line of fifths and a mode. */
@@ -44,7 +56,7 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   halfLifeMs: 4000,
   heldWeight: 1,
   hysteresis: 0.02,
-  initialKey: { tonic: 0, mode: 'major' },
+  initialKey: undefined,
   initialWeight: 4,
   homeLowest: -3,
   homeStrength: 0.02,
@@ -52,6 +64,7 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   localShare: 0.7,
   chordCompactness: 0.4,
   windowReach: 3,
+  namingCentre: 4,
 };
 
 /**
@@ -60,6 +73,12 @@ export const DEFAULT_FOLLOW: FollowParameters = {
  */
 const MAJOR_PROFILE = [6.35, 2.23, 3.48, 2.33, 4.38, 4.09, 2.52, 5.19, 2.39, 3.66, 2.29, 2.88];
 const MINOR_PROFILE = [6.33, 2.68, 3.52, 5.38, 2.6, 3.53, 2.54, 4.75, 3.98, 2.69, 3.34, 3.17];
+
+/** A major or minor triad spans four fifths (C–G–E, C–E♭–G); its subsets fewer. */
+const TRIAD_SPREAD = 4;
+
+/** Where the speller starts when no key is declared. */
+const GUESS: Key = { tonic: 0, mode: 'major' };
 
 /** Keys are written with at most seven sharps or flats: signatures −7…+7 (C♭ major … C♯ major). */
 const MAX_SIGNATURE = 7;
@@ -113,11 +132,14 @@ export class FollowSpeller implements Speller {
   private localWeight = 0;
   private localTime = 0;
   private readonly homeCentre: number;
+  /** True until a key is declared or found: the key the speller starts in is then only a guess. */
+  private guessing = true;
 
   constructor(private readonly p: FollowParameters = DEFAULT_FOLLOW) {
-    this.current = p.initialKey;
+    this.current = p.initialKey ?? GUESS;
     this.homeCentre = p.homeLowest + 5.5;
-    this.believe(p.initialKey);
+    this.believe(this.current);
+    this.guessing = p.initialKey === undefined;
   }
 
   /** Starts over in `key`, as if `initialWeight` notes had been heard in it. */
@@ -133,6 +155,7 @@ export class FollowSpeller implements Speller {
 
   setKey(key: DeclaredKey): void {
     this.believe({ tonic: key.tonic.fifths, mode: isMajorLike(key.mode) ? 'major' : 'minor' });
+    this.guessing = false;
   }
 
   setFrozen(frozen: boolean): void {
@@ -161,6 +184,7 @@ export class FollowSpeller implements Speller {
   /** The 24 keys as they would be spelled from `candidatesFor`. */
   private candidates: Key[] = [];
   private candidatesFor: Key | undefined;
+  private candidatesGuessing = true;
 
   /** Correlation of the weights (centred, in `scratch`) with a key's profile, over `norm`. */
   private correlation(tonicChroma: number, mode: Key['mode'], norm: number): number {
@@ -190,7 +214,8 @@ export class FollowSpeller implements Speller {
     }
     norm = Math.sqrt(norm);
     const currentScore = this.correlation(chromaAt(this.current.tonic), this.current.mode, norm) - this.homeCost(this.current);
-    if (this.candidatesFor !== this.current) {
+    if (this.candidatesFor !== this.current || this.candidatesGuessing !== this.guessing) {
+      this.candidatesGuessing = this.guessing;
       this.candidates = MODES.flatMap((mode) => Array.from({ length: 12 }, (_, chroma) => this.spelledKey(chroma, mode)));
       this.candidatesFor = this.current;
     }
@@ -203,25 +228,27 @@ export class FollowSpeller implements Speller {
         bestScore = s;
       }
     }
-    if (best && bestScore - currentScore > this.p.hysteresis) this.current = best;
+    if (best && bestScore - currentScore > this.p.hysteresis) {
+      this.current = best;
+      this.guessing = false;
+    }
   }
 
   /**
-   * The spelling of a key (tonic chroma and mode) as written: at most seven sharps or flats in its
-   * signature, and of two such spellings (F♯ or G♭ major) the one nearer the current key; on a
-   * tie, the one nearer home.
+   * The name of a key (tonic chroma and mode): at most seven sharps or flats in its signature, and
+   * of two such names (F♯ or G♭ major) the one whose window is nearer the current key's, or, while
+   * the current key is only a guess, nearer the naming centre; ties go sharpward.
    */
   private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
     const base = mod(7 * tonicChroma, 12);
-    const from = signatureOf(this.current);
+    const from = this.guessing ? this.p.namingCentre : windowCentreOf(this.current);
     let best: Key | undefined;
     let bestCost = Infinity;
     for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
       const key: Key = { tonic, mode };
-      const signature = signatureOf(key);
-      if (Math.abs(signature + 1) > MAX_SIGNATURE) continue;
-      const cost = Math.abs(signature - from) + 1e-3 * Math.abs(windowCentreOf(key) - this.homeCentre);
-      if (cost < bestCost) {
+      if (Math.abs(signatureOf(key) + 1) > MAX_SIGNATURE) continue;
+      const cost = Math.abs(windowCentreOf(key) - from) + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
+      if (cost <= bestCost) {
         best = key;
         bestCost = cost;
       }
@@ -285,6 +312,9 @@ export class FollowSpeller implements Speller {
     // Each chroma may move to its other spelling on the far side of the centre (2 choices each).
     let bestMask = 0;
     let bestCost = Infinity;
+    let bestSpread = 0;
+    let triadMask = -1;
+    let triadDistance = Infinity;
     const count = 1 << chromas.length;
     for (let mask = 0; mask < count; mask++) {
       let lo = Infinity;
@@ -296,12 +326,21 @@ export class FollowSpeller implements Speller {
         if (f > hi) hi = f;
         distance += Math.abs(f - centre);
       }
-      const cost = distance + this.p.chordCompactness * (hi - lo);
+      const spread = hi - lo;
+      const cost = distance + this.p.chordCompactness * spread;
       if (cost < bestCost - 1e-9) {
         bestCost = cost;
         bestMask = mask;
+        bestSpread = spread;
+      }
+      if (spread <= TRIAD_SPREAD && distance < triadDistance - 1e-9) {
+        triadDistance = distance;
+        triadMask = mask;
       }
     }
+    // Three or more chromas that can be spelled as a triad are not spelled with an augmented second
+    // or a diminished fourth (a spread of 7 fifths or more).
+    if (chromas.length >= 3 && bestSpread >= 7 && triadMask >= 0) bestMask = triadMask;
     if (bestMask === 0) return nearest;
     return notes.map((n) => {
       const i = chromas.indexOf(mod(n.key, 12));

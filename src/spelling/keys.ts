@@ -20,7 +20,7 @@ const ALIASES: Readonly<Record<string, Mode>> = { maj: 'major', min: 'minor', m:
 /** Keys are written with at most seven sharps or flats (common practice, no source). */
 export const MAX_KEY_ACCIDENTALS = 7;
 
-const ACCEPTED = '"D minor", "d minor", "Dm", "D", "D major", "F# minor", "Bb major", "F♯ minor", "E flat major", "E phrygian"';
+const ACCEPTED = '"D minor", "Dm", "D major", "F# minor", "Bb major", "E flat major", "E phrygian"';
 
 /**
  * Parses a key as musicians write it: `D minor`, `d minor`, `Dm`, `Dmin`, `D`, `D major`, `Dmaj`,

@@ -44,7 +44,7 @@ describe('declared keys', () => {
     expect(() => parseKey('DM')).toThrow(/"DM" is ambiguous.*"D major" or "D minor"/u);
     expect(() => parseKey('F#M')).toThrow(/ambiguous/u);
     // A lowercase letter alone is minor in some traditions (common practice, no source).
-    expect(() => parseKey('d')).toThrow(/"d" is ambiguous.*accepted: "D minor"/u);
+    expect(() => parseKey('d')).toThrow(/"d" is ambiguous.*"D major" or "D minor"/u);
     expect(() => parseKey('D minr')).toThrow(/unknown mode "minr".*accepted/u);
     expect(() => parseKey('X major')).toThrow(/is not a key.*"Bb major"/u);
   });
