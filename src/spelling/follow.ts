@@ -59,7 +59,7 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   initialKey: undefined,
   initialWeight: 4,
   homeLowest: -3,
-  homeStrength: 0.02,
+  homeStrength: 0.04,
   localHalfLifeMs: 1000,
   localShare: 0.7,
   chordCompactness: 0.4,
@@ -76,6 +76,9 @@ const MINOR_PROFILE = [6.33, 2.68, 3.52, 5.38, 2.6, 3.53, 2.54, 4.75, 3.98, 2.69
 
 /** A major or minor triad spans four fifths (C–G–E, C–E♭–G); its subsets fewer. */
 const TRIAD_SPREAD = 4;
+
+/** How many accidentals beyond seven a key reached by modulation may have. */
+const BEYOND = 1;
 
 /** Where the speller starts when no key is declared. */
 const GUESS: Key = { tonic: 0, mode: 'major' };
@@ -134,6 +137,8 @@ export class FollowSpeller implements Speller {
   private readonly homeCentre: number;
   /** True until a key is declared or found: the key the speller starts in is then only a guess. */
   private guessing = true;
+  /** Notes heard (time-decayed like the chroma weights). */
+  private heard = 0;
 
   constructor(private readonly p: FollowParameters = DEFAULT_FOLLOW) {
     this.current = p.initialKey ?? GUESS;
@@ -170,6 +175,7 @@ export class FollowSpeller implements Speller {
     if (time > this.lastTime) {
       const factor = 0.5 ** ((time - this.lastTime) / this.p.halfLifeMs);
       for (let i = 0; i < 12; i++) this.weights[i]! *= factor;
+      this.heard *= factor;
       this.lastTime = time;
     }
     if (time > this.localTime) {
@@ -228,6 +234,8 @@ export class FollowSpeller implements Speller {
         bestScore = s;
       }
     }
+    // A guessed start gives way only once as many notes have been heard as it counts for.
+    if (this.guessing && this.heard < this.p.initialWeight) return;
     if (best && bestScore - currentScore > this.p.hysteresis) {
       this.current = best;
       this.guessing = false;
@@ -235,19 +243,25 @@ export class FollowSpeller implements Speller {
   }
 
   /**
-   * The name of a key (tonic chroma and mode): at most seven sharps or flats in its signature, and
-   * of two such names (F♯ or G♭ major) the one whose window is nearer the current key's, or, while
-   * the current key is only a guess, nearer the naming centre; ties go sharpward.
+   * The name of a key (tonic chroma and mode): of its enharmonic names (F♯ or G♭ major) the one
+   * whose window is nearer the current key's, or, while the current key is only a guess, nearer the
+   * naming centre; ties go sharpward. Keys are written with at most seven sharps or flats, but a
+   * modulation may pass through a key beyond (E♯ minor from C♯ major): each accidental beyond
+   * seven costs one fifth of distance, so the name comes back within seven as soon as that is
+   * nearer, and never goes beyond eleven.
    */
   private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
     const base = mod(7 * tonicChroma, 12);
     const from = this.guessing ? this.p.namingCentre : windowCentreOf(this.current);
+    const limit = this.guessing ? MAX_SIGNATURE : MAX_SIGNATURE + BEYOND;
     let best: Key | undefined;
     let bestCost = Infinity;
     for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
       const key: Key = { tonic, mode };
-      if (Math.abs(signatureOf(key) + 1) > MAX_SIGNATURE) continue;
-      const cost = Math.abs(windowCentreOf(key) - from) + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
+      const accidentals = Math.abs(signatureOf(key) + 1);
+      if (accidentals > limit) continue;
+      const beyond = Math.max(0, accidentals - MAX_SIGNATURE);
+      const cost = Math.abs(windowCentreOf(key) - from) + beyond + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
       if (cost <= bestCost) {
         best = key;
         bestCost = cost;
@@ -274,6 +288,7 @@ export class FollowSpeller implements Speller {
     if (!this.frozen) {
       this.decayTo(notes[0]!.time);
       for (const n of notes) this.weights[mod(n.key, 12)]! += 1;
+      this.heard += notes.length;
       this.update();
     }
     // The whole group counts before any of it is spelled, and it is spelled as one chord.
