@@ -59,7 +59,7 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   initialKey: undefined,
   initialWeight: 4,
   homeLowest: -3,
-  homeStrength: 0.04,
+  homeStrength: 0.02,
   localHalfLifeMs: 1000,
   localShare: 0.7,
   chordCompactness: 0.4,
@@ -77,8 +77,6 @@ const MINOR_PROFILE = [6.33, 2.68, 3.52, 5.38, 2.6, 3.53, 2.54, 4.75, 3.98, 2.69
 /** A major or minor triad spans four fifths (C–G–E, C–E♭–G); its subsets fewer. */
 const TRIAD_SPREAD = 4;
 
-/** How many accidentals beyond seven a key reached by modulation may have. */
-const BEYOND = 1;
 
 /** Where the speller starts when no key is declared. */
 const GUESS: Key = { tonic: 0, mode: 'major' };
@@ -243,25 +241,19 @@ export class FollowSpeller implements Speller {
   }
 
   /**
-   * The name of a key (tonic chroma and mode): of its enharmonic names (F♯ or G♭ major) the one
-   * whose window is nearer the current key's, or, while the current key is only a guess, nearer the
-   * naming centre; ties go sharpward. Keys are written with at most seven sharps or flats, but a
-   * modulation may pass through a key beyond (E♯ minor from C♯ major): each accidental beyond
-   * seven costs one fifth of distance, so the name comes back within seven as soon as that is
-   * nearer, and never goes beyond eleven.
+   * The name of a key (tonic chroma and mode): at most seven sharps or flats, and of two such names
+   * (F♯ or G♭ major) the one whose window is nearer the current key's, or, while the current key
+   * is only a guess, nearer the naming centre; ties go sharpward.
    */
   private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
     const base = mod(7 * tonicChroma, 12);
     const from = this.guessing ? this.p.namingCentre : windowCentreOf(this.current);
-    const limit = this.guessing ? MAX_SIGNATURE : MAX_SIGNATURE + BEYOND;
     let best: Key | undefined;
     let bestCost = Infinity;
     for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
       const key: Key = { tonic, mode };
-      const accidentals = Math.abs(signatureOf(key) + 1);
-      if (accidentals > limit) continue;
-      const beyond = Math.max(0, accidentals - MAX_SIGNATURE);
-      const cost = Math.abs(windowCentreOf(key) - from) + beyond + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
+      if (Math.abs(signatureOf(key) + 1) > MAX_SIGNATURE) continue;
+      const cost = Math.abs(windowCentreOf(key) - from) + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
       if (cost <= bestCost) {
         best = key;
         bestCost = cost;
