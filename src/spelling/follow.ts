@@ -1,4 +1,4 @@
-import { keyboardWindow, onKey, pitchClass, type KeyboardWindow, type PitchClass, type SpelledPitch } from '../pitch/index.js';
+import { DEFAULT_WINDOW, keyboardWindow, onKey, pitchClass, type KeyboardWindow, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import { isMajorLike, type DeclaredKey } from './keys.js';
 import { mod } from '../util/errors.js';
 import type { NoteContext, Speller } from './speller.js';
@@ -18,14 +18,13 @@ export interface FollowParameters {
    */
   readonly initialKey: Key | undefined;
   readonly initialWeight: number;
+  /** The home window: the 12-note window the music is written for (E♭..G♯), the centre of the style prior. */
+  readonly homeWindow: KeyboardWindow;
   /**
-   * The home window: the lowest fifth of the 12-note window the music is written for (−3: E♭..G♯),
-   * the centre of the style prior.
-   */
-  readonly homeLowest: number;
-  /**
-   * Strength of the pull towards home: a key whose window lies `d` fifths beyond the home window
-   * must correlate `homeStrength · d` better to be chosen (0: no pull).
+   * Strength of the pull towards home (0: none; 0.5 or more: everything in the home window): a key
+   * whose window centre lies `d` fifths from the home window's must correlate `homeStrength · d`
+   * better to be chosen, and notes are spelled around a centre drawn `2 · homeStrength` of the way
+   * towards home.
    */
   readonly homeStrength: number;
   /** Half-life of the local centre of the notes just spelled, in milliseconds. */
@@ -58,7 +57,7 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   hysteresis: 0.02,
   initialKey: undefined,
   initialWeight: 4,
-  homeLowest: -3,
+  homeWindow: DEFAULT_WINDOW,
   homeStrength: 0.02,
   localHalfLifeMs: 1000,
   localShare: 0.7,
@@ -77,6 +76,9 @@ const MINOR_PROFILE = [6.33, 2.68, 3.52, 5.38, 2.6, 3.53, 2.54, 4.75, 3.98, 2.69
 /** A major or minor triad spans four fifths (C–G–E, C–E♭–G); its subsets fewer. */
 const TRIAD_SPREAD = 4;
 
+
+/** The share of the home centre in the spelling centre, per unit of `homeStrength` (0.5 and more: all of it). */
+const HOME_PULL = 2;
 
 /** Where the speller starts when no key is declared. */
 const GUESS: Key = { tonic: 0, mode: 'major' };
@@ -140,7 +142,7 @@ export class FollowSpeller implements Speller {
 
   constructor(private readonly p: FollowParameters = DEFAULT_FOLLOW) {
     this.current = p.initialKey ?? GUESS;
-    this.homeCentre = p.homeLowest + 5.5;
+    this.homeCentre = p.homeWindow.lowest + 5.5;
     this.believe(this.current);
     this.guessing = p.initialKey === undefined;
   }
@@ -270,9 +272,13 @@ export class FollowSpeller implements Speller {
   /** The centre new notes are spelled around: the key's window centre, drawn towards the local centre. */
   private centre(): number {
     const keyCentre = windowCentreOf(this.current);
-    if (this.localWeight <= 0 || this.p.localShare === 0) return keyCentre;
-    const share = (this.p.localShare * this.localWeight) / (this.localWeight + 1);
-    return (1 - share) * keyCentre + share * (this.localSum / this.localWeight);
+    let centre = keyCentre;
+    if (this.localWeight > 0 && this.p.localShare > 0) {
+      const share = (this.p.localShare * this.localWeight) / (this.localWeight + 1);
+      centre = (1 - share) * keyCentre + share * (this.localSum / this.localWeight);
+    }
+    const pull = Math.min(1, HOME_PULL * this.p.homeStrength);
+    return centre + pull * (this.homeCentre - centre);
   }
 
   spell(notes: readonly NoteContext[]): SpelledPitch[] {
