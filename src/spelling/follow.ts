@@ -60,8 +60,8 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   homeWindow: DEFAULT_WINDOW,
   homeStrength: 0.02,
   localHalfLifeMs: 1000,
-  localShare: 0.7,
-  chordCompactness: 0.4,
+  localShare: 0.6,
+  chordCompactness: 0.3,
   windowReach: 3,
   namingCentre: 4,
 };
