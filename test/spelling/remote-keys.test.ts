@@ -1,4 +1,6 @@
 import { describe, expect, it } from 'vitest';
+import { formatSpelledPitch, keyOf, parseSpelledPitch } from '../../src/pitch/index.js';
+import { spellTake, type TakeEvent } from '../../src/spelling/accuracy.js';
 import { FollowSpeller } from '../../src/spelling/follow.js';
 import { parseKey } from '../../src/spelling/keys.js';
 import { createStrategy } from '../../src/spelling/strategy.js';
@@ -75,4 +77,30 @@ describe('follow: chords spelled as chords', () => {
     ]);
     expect(out[1]).toEqual(['B2', 'D4', 'F4', 'Ab4']);
   });
+});
+
+describe('follow: remote keys played, chords arriving over 30 ms', () => {
+  /** The piece's chords with their notes 10 ms apart (top note first), each held until the next chord. */
+  function takeOf(chords: readonly (readonly string[])[]): TakeEvent[] {
+    return chords
+      .flatMap((chord, c) =>
+        [...chord].reverse().flatMap((name, i) => {
+          const key = keyOf(parseSpelledPitch(name));
+          const id = c * 16 + i;
+          return [
+            { time: c * 500 + i * 10, on: true, id, key, channel: 0, velocity: 80 },
+            { time: c * 500 + 495, on: false, id, key, channel: 0, velocity: 0 },
+          ];
+        }),
+      )
+      .sort((a, b) => a.time - b.time || Number(a.on) - Number(b.on));
+  }
+
+  for (const piece of REMOTE_KEY_PIECES) {
+    it(`${piece.name}, gathered over 40 ms, without --key`, () => {
+      const spelled = spellTake(takeOf(piece.chords), undeclared(), 40);
+      const out = piece.chords.map((chord, c) => [...chord].reverse().map((_, i) => formatSpelledPitch(spelled.get(c * 16 + i)!)).reverse());
+      expect(out).toEqual(piece.chords);
+    });
+  }
 });
