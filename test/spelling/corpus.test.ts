@@ -12,11 +12,11 @@ import { fixedSpeller, type Speller } from '../../src/spelling/speller.js';
 
 /**
  * What `follow` reaches on each corpus with its defaults (printed by `npm run bench`, both halves):
- * the floors asserted here. The goal is 99.5% everywhere; Mozart (98.84%) and Scarlatti (99.26%)
+ * the floors asserted here. The goal is 99.5% everywhere; Mozart (98.91%) and Scarlatti (99.24%)
  * fall short of it, and their floors say so.
  */
 const FOLLOW_FLOOR: Readonly<Record<CorpusName, number>> = {
-  mozart: 0.988,
+  mozart: 0.989,
   scarlatti: 0.992,
   'bach-suites': 0.995,
   schuetz: 0.995,
