@@ -104,3 +104,32 @@ describe('follow: remote keys played, chords arriving over 30 ms', () => {
     });
   }
 });
+
+describe('follow: one early note does not decide the key', () => {
+  it('a B major opening whose notes arrive 8 ms apart, spelled one by one, stays in B major, not C♭', () => {
+    const chords = [
+      ['B2', 'D#4', 'F#4', 'B4'], // I
+      ['E3', 'G#4', 'B4', 'E5'], // IV
+      ['F#3', 'A#4', 'C#5', 'E5'], // V7
+      ['B2', 'D#4', 'F#4', 'B4'], // I
+      ['G#2', 'D#4', 'G#4', 'B4'], // vi
+      ['F#3', 'A#4', 'C#5', 'E5'], // V7
+      ['B2', 'D#4', 'F#4', 'B4'], // I
+    ];
+    const events: TakeEvent[] = chords
+      .flatMap((chord, c) =>
+        chord.flatMap((name, i) => {
+          const key = keyOf(parseSpelledPitch(name));
+          return [
+            { time: c * 500 + i * 8, on: true, id: c * 16 + i, key, channel: 0, velocity: 80 },
+            { time: c * 500 + 495, on: false, id: c * 16 + i, key, channel: 0, velocity: 0 },
+          ];
+        }),
+      )
+      .sort((a, b) => a.time - b.time || Number(a.on) - Number(b.on));
+    const spelled = spellTake(events, undeclared(), 0);
+    const out = chords.map((chord, c) => chord.map((_, i) => formatSpelledPitch(spelled.get(c * 16 + i)!)));
+    // The B heard first draws the centre sharpward, so D♯ is D♯ already in the first chord.
+    expect(out).toEqual(chords);
+  });
+});
