@@ -27,7 +27,7 @@ export interface FollowParameters {
    * towards home.
    */
   readonly homeStrength: number;
-  /** Half-life of the local centre of the notes just spelled, in milliseconds. */
+  /** Half-life of a chroma's weight in the local centre of the notes just spelled, in milliseconds. */
   readonly localHalfLifeMs: number;
   /** Share (0…1) of the local centre in the centre notes are spelled around; the rest is the key's. */
   readonly localShare: number;
@@ -59,7 +59,7 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   initialWeight: 4,
   homeWindow: DEFAULT_WINDOW,
   homeStrength: 0.02,
-  localHalfLifeMs: 1000,
+  localHalfLifeMs: 2000,
   localShare: 0.6,
   chordCompactness: 0.3,
   windowReach: 3,
@@ -130,10 +130,13 @@ export class FollowSpeller implements Speller {
   private current: Key;
   private readonly held = new Map<number, number>();
   private frozen = false;
-  /** Decayed sum of spelled fifths positions and of their weights: the local centre is their ratio. */
-  private localSum = 0;
+  /** Notes spelled lately (time-decayed): how much the local centre counts. */
   private localWeight = 0;
   private localTime = 0;
+  /** The latest spelling of each chroma and when it was heard. */
+  private readonly chromaF = new Float64Array(12);
+  private readonly chromaT = new Float64Array(12).fill(-Infinity);
+
   private readonly homeCentre: number;
   /** True until a key is declared or found: the key the speller starts in is then only a guess. */
   private guessing = true;
@@ -154,8 +157,8 @@ export class FollowSpeller implements Speller {
     const tonicChroma = chromaAt(key.tonic);
     const total = profile.reduce((a, b) => a + b, 0);
     profile.forEach((v, i) => (this.weights[(tonicChroma + i) % 12] = (this.p.initialWeight * v) / total));
-    this.localSum = 0;
     this.localWeight = 0;
+    this.chromaT.fill(-Infinity);
   }
 
   setKey(key: DeclaredKey): void {
@@ -171,6 +174,24 @@ export class FollowSpeller implements Speller {
     return pitchClass(this.current.tonic);
   }
 
+  /**
+   * The local centre: the mean of the latest spelling of each chroma, each weighted by how recently
+   * it was heard (halving every `localHalfLifeMs`), so that a repeated note does not outweigh the
+   * harmony around it: the centre of effect of the pitch-class set just heard.
+   */
+  private localCentre(): number {
+    let sum = 0;
+    let weight = 0;
+    for (let c = 0; c < 12; c++) {
+      const t = this.chromaT[c]!;
+      if (t === -Infinity) continue;
+      const w = 0.5 ** ((this.localTime - t) / this.p.localHalfLifeMs);
+      sum += w * this.chromaF[c]!;
+      weight += w;
+    }
+    return weight > 0 ? sum / weight : windowCentreOf(this.current);
+  }
+
   private decayTo(time: number): void {
     if (time > this.lastTime) {
       const factor = 0.5 ** ((time - this.lastTime) / this.p.halfLifeMs);
@@ -180,7 +201,6 @@ export class FollowSpeller implements Speller {
     }
     if (time > this.localTime) {
       const factor = 0.5 ** ((time - this.localTime) / this.p.localHalfLifeMs);
-      this.localSum *= factor;
       this.localWeight *= factor;
       this.localTime = time;
     }
@@ -275,7 +295,7 @@ export class FollowSpeller implements Speller {
     let centre = keyCentre;
     if (this.localWeight > 0 && this.p.localShare > 0) {
       const share = (this.p.localShare * this.localWeight) / (this.localWeight + 1);
-      centre = (1 - share) * keyCentre + share * (this.localSum / this.localWeight);
+      centre = (1 - share) * keyCentre + share * this.localCentre();
     }
     const pull = Math.min(1, HOME_PULL * this.p.homeStrength);
     return centre + pull * (this.homeCentre - centre);
@@ -296,8 +316,10 @@ export class FollowSpeller implements Speller {
       this.held.set(noteId(n), mod(n.key, 12));
       const f = this.withinReach(fifths[i]!);
       if (!this.frozen) {
-        this.localSum += f;
         this.localWeight += 1;
+        const c = mod(n.key, 12);
+        this.chromaF[c] = f;
+        this.chromaT[c] = n.time;
       }
       return onKey(pitchClass(f), n.key);
     });
