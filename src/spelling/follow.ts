@@ -33,7 +33,6 @@ export interface FollowParameters {
   readonly localShare: number;
   /** Weight of a chord's spread on the line of fifths against each note's distance from the centre. */
   readonly chordCompactness: number;
-
   /** How many fifths beyond the key's window a spelling may lie (the key bounds the local pull). */
   readonly windowReach: number;
   /**
@@ -75,7 +74,6 @@ const MINOR_PROFILE = [6.33, 2.68, 3.52, 5.38, 2.6, 3.53, 2.54, 4.75, 3.98, 2.69
 
 /** A major or minor triad spans four fifths (C–G–E, C–E♭–G); its subsets fewer. */
 const TRIAD_SPREAD = 4;
-
 
 /** The share of the home centre in the spelling centre, per unit of `homeStrength` (0.5 and more: all of it). */
 const HOME_PULL = 2;
