@@ -83,6 +83,12 @@ const GUESS: Key = { tonic: 0, mode: 'major' };
 
 /** Keys are written with at most seven sharps or flats: signatures −7…+7 (C♭ major … C♯ major). */
 const MAX_SIGNATURE = 7;
+/**
+ * A modulation to the dominant or subdominant may pass through a key of eight accidentals (G♯ major,
+ * the dominant of C♯ major or minor; F♭ major, the subdominant of C♭ major), at a cost of one
+ * fifth of distance; no other key goes beyond seven.
+ */
+const BEYOND_COST = 1;
 
 /** The flattest fifth of a key's diatonic set: major's tonic less one fifth, minor's less four (as keySignatureOf). */
 export function signatureOf(key: Key): number {
@@ -261,9 +267,11 @@ export class FollowSpeller implements Speller {
   }
 
   /**
-   * The name of a key (tonic chroma and mode): at most seven sharps or flats, and of two such names
-   * (F♯ or G♭ major) the one whose window is nearer the current key's, or, while the current key
-   * is only a guess, nearer the naming centre; ties go sharpward.
+   * The name of a key (tonic chroma and mode): of its enharmonic names (F♯ or G♭ major) the one
+   * whose window is nearer the current key's, or, while the current key is only a guess, nearer the
+   * naming centre; ties go sharpward. Keys are written with at most seven sharps or flats, but a
+   * modulation to the dominant or subdominant may pass through one with eight (G♯ major from C♯
+   * minor); from there the name comes back within seven at the next key, and cannot walk further.
    */
   private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
     const base = mod(7 * tonicChroma, 12);
@@ -272,8 +280,10 @@ export class FollowSpeller implements Speller {
     let bestCost = Infinity;
     for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
       const key: Key = { tonic, mode };
-      if (Math.abs(signatureOf(key) + 1) > MAX_SIGNATURE) continue;
-      const cost = Math.abs(windowCentreOf(key) - from) + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
+      const accidentals = Math.abs(signatureOf(key) + 1);
+      const beyond = accidentals > MAX_SIGNATURE;
+      if (beyond && (this.guessing || accidentals > MAX_SIGNATURE + 1 || Math.abs(tonic - this.current.tonic) > 1)) continue;
+      const cost = Math.abs(windowCentreOf(key) - from) + (beyond ? BEYOND_COST : 0) + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
       if (cost <= bestCost) {
         best = key;
         bestCost = cost;

@@ -17,7 +17,7 @@ import { fixedSpeller, type Speller } from '../../src/spelling/speller.js';
  */
 const FOLLOW_FLOOR: Readonly<Record<CorpusName, number>> = {
   mozart: 0.989,
-  scarlatti: 0.992,
+  scarlatti: 0.993,
   'bach-suites': 0.995,
   schuetz: 0.995,
   corelli: 0.995,

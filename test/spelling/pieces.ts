@@ -74,7 +74,25 @@ export const F_MINOR_AFTER_A_MINOR: TestPiece = {
   ],
 };
 
-export const REMOTE_KEY_PIECES: readonly TestPiece[] = [CADENCE_IN_C_SHARP_MAJOR, TO_G_SHARP_MINOR_AND_BACK, CHROMATIC_LINE_IN_F_SHARP_MAJOR];
+export const C_SHARP_MINOR_TO_ITS_DOMINANT: TestPiece = {
+  name: 'C♯ minor, a passage in its dominant G♯ major, and back',
+  key: 'C# minor',
+  chords: [
+    ['C#3', 'E4', 'G#4', 'C#5'], // c♯: i
+    ['F#3', 'F#4', 'A4', 'C#5'], // iv
+    ['G#2', 'B#3', 'D#4', 'G#4'], // V
+    ['C#3', 'C#4', 'E4', 'G#4'], // i
+    ['G#2', 'B#3', 'D#4', 'G#4'], // G♯: I
+    ['D#3', 'F##3', 'A#3', 'D#4'], // V of G♯
+    ['G#2', 'B#3', 'D#4', 'G#4'], // I
+    ['C#3', 'C#4', 'E#4', 'G#4'], // IV (C♯ major)
+    ['D#3', 'C#4', 'F##4', 'A#4'], // V7
+    ['G#2', 'B#3', 'D#4', 'G#4'], // I = V of c♯
+    ['C#3', 'C#4', 'E4', 'G#4'], // c♯: i
+  ],
+};
+
+export const REMOTE_KEY_PIECES: readonly TestPiece[] = [CADENCE_IN_C_SHARP_MAJOR, TO_G_SHARP_MINOR_AND_BACK, CHROMATIC_LINE_IN_F_SHARP_MAJOR, C_SHARP_MINOR_TO_ITS_DOMINANT];
 
 /** Plays chords (note names, one every `beatMs`), each held until the next; returns what the speller spelled. */
 export function play(speller: Speller, chords: readonly (readonly string[])[], beatMs = 500, start = 0): string[][] {
