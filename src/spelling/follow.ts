@@ -33,6 +33,13 @@ export interface FollowParameters {
   readonly localShare: number;
   /** Weight of a chord's spread on the line of fifths against each note's distance from the centre. */
   readonly chordCompactness: number;
+  /**
+   * How sharply the key's window centre follows the best key: the centres of all keys, named from
+   * the current one, are weighted by exp(fit / keySoftness), fit being the correlation less the
+   * home cost (0: the current key's centre alone). Keys that fit almost as well (a relative major
+   * or minor) then move the centre part of the way, before the key itself changes.
+   */
+  readonly keySoftness: number;
   /** How many fifths beyond the key's window a spelling may lie (the key bounds the local pull). */
   readonly windowReach: number;
   /**
@@ -61,6 +68,7 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   localHalfLifeMs: 2000,
   localShare: 0.6,
   chordCompactness: 0.3,
+  keySoftness: 0.2,
   windowReach: 3,
   namingCentre: 4,
 };
@@ -123,8 +131,8 @@ const MODES = ['major', 'minor'] as const;
  *
  * The spelling: each note takes the spelling nearest a centre on the line of fifths, the
  * line-of-fifths proximity of Longuet-Higgins's and Temperley's spellers and the "centre of
- * effect" of Chew and Chen's spiral array: here a blend of the key's window centre and the local
- * centre of the notes just spelled. Notes that begin together are spelled as a chord: of the
+ * effect" of Chew and Chen's spiral array: here a blend of the key's window centre (softened over
+ * the keys that fit almost as well) and the local centre of the notes just spelled. Notes that begin together are spelled as a chord: of the
  * spellings near the centre the set that is most compact on the line of fifths (a triad rather
  * than an augmented second or a diminished fourth); notes already held do not enter that choice.
  */
@@ -163,6 +171,7 @@ export class FollowSpeller implements Speller {
     profile.forEach((v, i) => (this.weights[(tonicChroma + i) % 12] = (this.p.initialWeight * v) / total));
     this.localWeight = 0;
     this.chromaT.fill(-Infinity);
+    this.softCentre = NaN;
   }
 
   setKey(key: DeclaredKey): void {
@@ -215,6 +224,12 @@ export class FollowSpeller implements Speller {
   private candidates: Key[] = [];
   private candidatesFor: Key | undefined;
   private candidatesGuessing = true;
+  private readonly scores = new Float64Array(24);
+  /**
+   * The key's window centre as a soft estimate: the window centres of the 24 keys (named from the
+   * current one), weighted by exp(fit / keySoftness); NaN until keys have been weighed.
+   */
+  private softCentre = NaN;
 
   /** Correlation of the weights (centred, in `scratch`) with a key's profile, over `norm`. */
   private correlation(tonicChroma: number, mode: Key['mode'], norm: number): number {
@@ -251,12 +266,26 @@ export class FollowSpeller implements Speller {
     }
     let best: Key | undefined;
     let bestScore = currentScore;
-    for (const key of this.candidates) {
+    let top = -Infinity;
+    const scores = this.scores;
+    this.candidates.forEach((key, i) => {
       const s = this.correlation(chromaAt(key.tonic), key.mode, norm) - this.homeCost(key);
+      scores[i] = s;
+      if (s > top) top = s;
       if (s > bestScore) {
         best = key;
         bestScore = s;
       }
+    });
+    if (this.p.keySoftness > 0) {
+      let sum = 0;
+      let weight = 0;
+      this.candidates.forEach((key, i) => {
+        const w = Math.exp((scores[i]! - top) / this.p.keySoftness);
+        sum += w * windowCentreOf(key);
+        weight += w;
+      });
+      this.softCentre = sum / weight;
     }
     // A guessed start gives way only once as many notes have been heard as it counts for.
     if (this.guessing && this.heard < this.p.initialWeight) return;
@@ -299,7 +328,7 @@ export class FollowSpeller implements Speller {
 
   /** The centre new notes are spelled around: the key's window centre, drawn towards the local centre. */
   private centre(): number {
-    const keyCentre = windowCentreOf(this.current);
+    const keyCentre = Number.isNaN(this.softCentre) ? windowCentreOf(this.current) : this.softCentre;
     let centre = keyCentre;
     if (this.localWeight > 0 && this.p.localShare > 0) {
       const share = (this.p.localShare * this.localWeight) / (this.localWeight + 1);
