@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { parseWindow } from '../pitch/index.js';
 import { OUTPUT_MODE_IDS } from '../router/output-modes.js';
 import { ACTION_NAMES } from '../spelling/control-map.js';
 import { STRATEGIES } from '../spelling/strategy.js';
@@ -58,6 +59,21 @@ export const setupSchema = z.strictObject({
           heldWeight: z.number().min(0).optional(),
           hysteresis: z.number().min(0).max(2).optional(),
           initialWeight: z.number().min(0).optional(),
+          homeWindow: z
+            .string()
+            .transform((text, ctx) => {
+              try {
+                return parseWindow(text, 'homeWindow');
+              } catch (error) {
+                ctx.addIssue({ code: 'custom', message: error instanceof Error ? error.message : String(error) });
+                return z.NEVER;
+              }
+            })
+            .optional(),
+          homeStrength: z.number().min(0).max(1).optional(),
+          localHalfLifeMs: z.number().positive().max(60_000).optional(),
+          localShare: z.number().min(0).max(1).optional(),
+          chordCompactness: z.number().min(0).max(10).optional(),
         })
         .optional(),
     })

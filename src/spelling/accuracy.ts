@@ -83,3 +83,52 @@ export function scoreSpelling(spelled: readonly SpelledOnset[], written: Readonl
   }
   return { notes, correct, confusions };
 }
+
+/** A note-on or note-off of a take, with an id that pairs them. */
+export interface TakeEvent {
+  readonly time: number;
+  readonly on: boolean;
+  readonly id: number;
+  readonly key: number;
+  readonly channel: number;
+  readonly velocity: number;
+}
+
+/**
+ * Spells a take's note-ons as the live path does with `--gather MS`: a chord is the notes that
+ * begin within `gatherMs` of its first note, spelled together when the next note falls outside
+ * that time or one of them is released (0: each note alone). A key struck again while it sounds ends its
+ * earlier note first, as on a keyboard. Returns the spelling of each note-on by id.
+ */
+export function spellTake(events: readonly TakeEvent[], speller: Speller, gatherMs: number): Map<number, SpelledPitch> {
+  const out = new Map<number, SpelledPitch>();
+  const sounding = new Map<number, number>(); // channel·128 + key → id of the note sounding there
+  let pending: TakeEvent[] = [];
+  const context = (e: TakeEvent, time: number): NoteContext => ({ key: e.key, velocity: e.velocity, time, channel: e.channel, source: 0 });
+  const flush = (): void => {
+    if (pending.length === 0) return;
+    const since = pending[0]!.time;
+    const pitches = speller.spell(pending.map((e) => context(e, since)));
+    pending.forEach((e, i) => out.set(e.id, pitches[i]!));
+    pending = [];
+  };
+  for (const e of events) {
+    if (pending.length > 0 && (e.time - pending[0]!.time > gatherMs || (!e.on && pending.some((p) => p.id === e.id)))) flush();
+    const place = e.channel * 128 + e.key;
+    if (e.on) {
+      const earlier = sounding.get(place);
+      if (earlier !== undefined) {
+        flush();
+        speller.noteOff(context(e, e.time));
+      }
+      sounding.set(place, e.id);
+      pending.push(e);
+      if (gatherMs === 0) flush();
+    } else if (sounding.get(place) === e.id) {
+      sounding.delete(place);
+      speller.noteOff(context(e, e.time));
+    }
+  }
+  flush();
+  return out;
+}

@@ -1,19 +1,54 @@
-import { onKey, pitchClass, spellChroma, spellKey, type KeyboardWindow, type PitchClass, type SpelledPitch } from '../pitch/index.js';
-import { isMajorLike, keySignatureOf, keyWindow, type DeclaredKey } from './keys.js';
+import { DEFAULT_WINDOW, keyboardWindow, onKey, pitchClass, type KeyboardWindow, type PitchClass, type SpelledPitch } from '../pitch/index.js';
+import { isMajorLike, type DeclaredKey } from './keys.js';
 import { mod } from '../util/errors.js';
 import type { NoteContext, Speller } from './speller.js';
 
 /** Parameters of the following speller (all have defaults; the setup file may change them). */
 export interface FollowParameters {
-  /** Half-life of a note's weight in the running estimate, in milliseconds. */
+  /** Half-life of a note's weight in the key estimate, in milliseconds. */
   readonly halfLifeMs: number;
   /** Extra weight of each note while it is held, relative to a fresh note. */
   readonly heldWeight: number;
   /** How much better a new key must correlate (0…2) before it replaces the current one. */
   readonly hysteresis: number;
-  /** The key assumed at the start (C major), and its weight as if that many notes had been heard. */
-  readonly initialKey: Key;
+  /**
+   * The key declared for the start, or undefined to start from a guess of C major (whose name
+   * does not bind the first key found: see `namingCentre`); and the weight of the starting key as
+   * if that many notes had been heard in it.
+   */
+  readonly initialKey: Key | undefined;
   readonly initialWeight: number;
+  /** The home window: the 12-note window the music is written for (E♭..G♯), the centre of the style prior. */
+  readonly homeWindow: KeyboardWindow;
+  /**
+   * Strength of the pull towards home (0: none; 0.5 or more: everything in the home window): a key
+   * whose window centre lies `d` fifths from the home window's must correlate `homeStrength · d`
+   * better to be chosen, and notes are spelled around a centre drawn `2 · homeStrength` of the way
+   * towards home.
+   */
+  readonly homeStrength: number;
+  /** Half-life of a chroma's weight in the local centre of the notes just spelled, in milliseconds. */
+  readonly localHalfLifeMs: number;
+  /** Share (0…1) of the local centre in the centre notes are spelled around; the rest is the key's. */
+  readonly localShare: number;
+  /** Weight of a chord's spread on the line of fifths against each note's distance from the centre. */
+  readonly chordCompactness: number;
+  /**
+   * How sharply the key's window centre follows the best key: the centres of all keys, named from
+   * the current one, are weighted by exp(fit / keySoftness), fit being the correlation less the
+   * home cost (0: the current key's centre alone). Keys that fit almost as well (a relative major
+   * or minor) then move the centre part of the way, before the key itself changes.
+   */
+  readonly keySoftness: number;
+  /** How many fifths beyond the key's window a spelling may lie (the key bounds the local pull). */
+  readonly windowReach: number;
+  /**
+   * Where a key with two names (C♯ or D♭ major) is named when nothing heard before decides it, as
+   * a position on the line of fifths: the name whose window centre is nearer wins. 4 gives the names
+   * of Baroque keyboard music (C♯ and F♯ major, C♯, D♯ and G♯ minor, but A♭ major and B♭ minor);
+   * 0 gives D♭ and G♭ major and E♭ minor. Once a key is known, a new key takes the name nearer it.
+   */
+  readonly namingCentre: number;
 }
 
 /** A key as the follower estimates it: a tonic on the line of fifths and a mode. */
@@ -26,8 +61,16 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   halfLifeMs: 4000,
   heldWeight: 1,
   hysteresis: 0.02,
-  initialKey: { tonic: 0, mode: 'major' },
+  initialKey: undefined,
   initialWeight: 4,
+  homeWindow: DEFAULT_WINDOW,
+  homeStrength: 0.02,
+  localHalfLifeMs: 2000,
+  localShare: 0.6,
+  chordCompactness: 0.3,
+  keySoftness: 0.2,
+  windowReach: 3,
+  namingCentre: 4,
 };
 
 /**
@@ -37,13 +80,32 @@ export const DEFAULT_FOLLOW: FollowParameters = {
 const MAJOR_PROFILE = [6.35, 2.23, 3.48, 2.33, 4.38, 4.09, 2.52, 5.19, 2.39, 3.66, 2.29, 2.88];
 const MINOR_PROFILE = [6.33, 2.68, 3.52, 5.38, 2.6, 3.53, 2.54, 4.75, 3.98, 2.69, 3.34, 3.17];
 
-/** The flattest fifth of a key's diatonic set: major's tonic less one fifth, minor's less four. */
+/** A major or minor triad spans four fifths (C–G–E, C–E♭–G); its subsets fewer. */
+const TRIAD_SPREAD = 4;
+
+/** The share of the home centre in the spelling centre, per unit of `homeStrength` (0.5 and more: all of it). */
+const HOME_PULL = 2;
+
+/** Where the speller starts when no key is declared. */
+const GUESS: Key = { tonic: 0, mode: 'major' };
+
+/** Keys are written with at most seven sharps or flats: signatures −7…+7 (C♭ major … C♯ major). */
+const MAX_SIGNATURE = 7;
+/**
+ * A modulation to the dominant or subdominant may pass through a key of eight accidentals (G♯ major,
+ * the dominant of C♯ major or minor; F♭ major, the subdominant of C♭ major), at a cost of one
+ * fifth of distance; no other key goes beyond seven.
+ */
+const BEYOND_COST = 1;
+
+/** The flattest fifth of a key's diatonic set: major's tonic less one fifth, minor's less four (as keySignatureOf). */
 export function signatureOf(key: Key): number {
-  return keySignatureOf(asDeclared(key));
+  return key.tonic - (key.mode === 'major' ? 1 : 4);
 }
 
-function asDeclared(key: Key): DeclaredKey {
-  return { tonic: pitchClass(key.tonic), mode: key.mode };
+/** The centre on the line of fifths of the key's window (as keyWindow: C major E♭..G♯, 2.5; A minor B♭..D♯, 3.5). */
+export function windowCentreOf(key: Key): number {
+  return key.tonic + (key.mode === 'major' ? 2.5 : 0.5);
 }
 
 /** A profile centred on its mean and scaled to unit length, so a correlation is one dot product. */
@@ -55,27 +117,49 @@ function normalise(profile: readonly number[]): Float64Array {
 }
 
 const PROFILES = { major: normalise(MAJOR_PROFILE), minor: normalise(MINOR_PROFILE) } as const;
+const MODES = ['major', 'minor'] as const;
 
 /**
- * Follows the harmony causally. It keeps a time-decayed weight per key (chroma) of the notes
- * heard, plus the notes held, and finds the key that fits them best (Krumhansl–Schmuckler key
- * finding); each new note is spelled in that key's 12-note window: its diatonic set plus the
- * lowered and raised degrees usual in the mode. Working from chromas rather than from spelled
- * notes, the estimate cannot drift by feeding on its own spellings; of the enharmonic
- * equivalents of the best tonic it takes the one nearest the last on the line of fifths, and it
- * changes key only when the new one fits clearly better (hysteresis). This places the
- * line-of-fifths centre of Longuet-Higgins's, Temperley's and Chew & Chen's spellers at the key.
+ * Follows the harmony causally, in two layers.
+ *
+ * The key: a time-decayed weight per chroma of the notes heard, plus the notes held, and the key
+ * that fits them best (Krumhansl–Schmuckler key finding), changed only when the new key fits
+ * clearly better (hysteresis). Working from chromas rather than from spelled notes, the key cannot
+ * drift by feeding on its own spellings. Each key is a point on the line of fifths: of the
+ * enharmonic spellings of a tonic (F♯ or G♭ major) it takes the one nearest the key it leaves,
+ * within seven sharps or flats; a home window (the style prior) makes keys far from it cost more.
+ *
+ * The spelling: each note takes the spelling nearest a centre on the line of fifths, the
+ * line-of-fifths proximity of Longuet-Higgins's and Temperley's spellers and the "centre of
+ * effect" of Chew and Chen's spiral array: here a blend of the key's window centre (softened over
+ * the keys that fit almost as well) and the local centre of the notes just spelled. Notes that begin together are spelled as a chord: of the
+ * spellings near the centre the set that is most compact on the line of fifths (a triad rather
+ * than an augmented second or a diminished fourth); notes already held do not enter that choice.
  */
 export class FollowSpeller implements Speller {
-  private readonly weights: number[] = new Array<number>(12).fill(0);
+  private readonly weights = new Float64Array(12);
   private lastTime = 0;
   private current: Key;
   private readonly held = new Map<number, number>();
   private frozen = false;
+  /** Notes spelled lately (time-decayed): how much the local centre counts. */
+  private localWeight = 0;
+  private localTime = 0;
+  /** The latest spelling of each chroma and when it was heard. */
+  private readonly chromaF = new Float64Array(12);
+  private readonly chromaT = new Float64Array(12).fill(-Infinity);
+
+  private readonly homeCentre: number;
+  /** True until a key is declared or found: the key the speller starts in is then only a guess. */
+  private guessing = true;
+  /** Notes heard (time-decayed like the chroma weights). */
+  private heard = 0;
 
   constructor(private readonly p: FollowParameters = DEFAULT_FOLLOW) {
-    this.current = p.initialKey;
-    this.believe(p.initialKey);
+    this.current = p.initialKey ?? GUESS;
+    this.homeCentre = p.homeWindow.lowest + 5.5;
+    this.believe(this.current);
+    this.guessing = p.initialKey === undefined;
   }
 
   /** Starts over in `key`, as if `initialWeight` notes had been heard in it. */
@@ -85,10 +169,14 @@ export class FollowSpeller implements Speller {
     const tonicChroma = chromaAt(key.tonic);
     const total = profile.reduce((a, b) => a + b, 0);
     profile.forEach((v, i) => (this.weights[(tonicChroma + i) % 12] = (this.p.initialWeight * v) / total));
+    this.localWeight = 0;
+    this.chromaT.fill(-Infinity);
+    this.softCentre = NaN;
   }
 
   setKey(key: DeclaredKey): void {
     this.believe({ tonic: key.tonic.fifths, mode: isMajorLike(key.mode) ? 'major' : 'minor' });
+    this.guessing = false;
   }
 
   setFrozen(frozen: boolean): void {
@@ -99,21 +187,62 @@ export class FollowSpeller implements Speller {
     return pitchClass(this.current.tonic);
   }
 
+  /**
+   * The local centre: the mean of the latest spelling of each chroma, each weighted by how recently
+   * it was heard (halving every `localHalfLifeMs`), so that a repeated note does not outweigh the
+   * harmony around it: the centre of effect of the pitch-class set just heard.
+   */
+  private localCentre(): number {
+    let sum = 0;
+    let weight = 0;
+    for (let c = 0; c < 12; c++) {
+      const t = this.chromaT[c]!;
+      if (t === -Infinity) continue;
+      const w = 0.5 ** ((this.localTime - t) / this.p.localHalfLifeMs);
+      sum += w * this.chromaF[c]!;
+      weight += w;
+    }
+    return weight > 0 ? sum / weight : windowCentreOf(this.current);
+  }
+
   private decayTo(time: number): void {
-    if (time <= this.lastTime) return;
-    const factor = 0.5 ** ((time - this.lastTime) / this.p.halfLifeMs);
-    for (let i = 0; i < 12; i++) this.weights[i]! *= factor;
-    this.lastTime = time;
+    if (time > this.lastTime) {
+      const factor = 0.5 ** ((time - this.lastTime) / this.p.halfLifeMs);
+      for (let i = 0; i < 12; i++) this.weights[i]! *= factor;
+      this.heard *= factor;
+      this.lastTime = time;
+    }
+    if (time > this.localTime) {
+      const factor = 0.5 ** ((time - this.localTime) / this.p.localHalfLifeMs);
+      this.localWeight *= factor;
+      this.localTime = time;
+    }
   }
 
   private readonly scratch = new Float64Array(12);
+  /** The 24 keys as they would be spelled from `candidatesFor`. */
+  private candidates: Key[] = [];
+  private candidatesFor: Key | undefined;
+  private candidatesGuessing = true;
+  private readonly scores = new Float64Array(24);
+  /**
+   * The key's window centre as a soft estimate: the window centres of the 24 keys (named from the
+   * current one), weighted by exp(fit / keySoftness); NaN until keys have been weighed.
+   */
+  private softCentre = NaN;
 
   /** Correlation of the weights (centred, in `scratch`) with a key's profile, over `norm`. */
-  private score(tonicChroma: number, mode: Key['mode'], norm: number): number {
+  private correlation(tonicChroma: number, mode: Key['mode'], norm: number): number {
     const profile = PROFILES[mode];
     let dot = 0;
     for (let i = 0; i < 12; i++) dot += this.scratch[(tonicChroma + i) % 12]! * profile[i]!;
     return norm === 0 ? 0 : dot / norm;
+  }
+
+  /** How far (in fifths) a key's window lies beyond the home window, times the prior's strength. */
+  private homeCost(key: Key): number {
+    if (this.p.homeStrength === 0) return 0;
+    return this.p.homeStrength * Math.abs(windowCentreOf(key) - this.homeCentre);
   }
 
   private update(): void {
@@ -129,34 +258,65 @@ export class FollowSpeller implements Speller {
       norm += w[i]! * w[i]!;
     }
     norm = Math.sqrt(norm);
-    const currentScore = this.score(chromaAt(this.current.tonic), this.current.mode, norm);
-    let bestChroma = -1;
-    let bestMode: Key['mode'] = this.current.mode;
-    let bestScore = currentScore;
-    for (let chroma = 0; chroma < 12; chroma++) {
-      for (const mode of ['major', 'minor'] as const) {
-        const s = this.score(chroma, mode, norm);
-        if (s > bestScore) {
-          bestChroma = chroma;
-          bestMode = mode;
-          bestScore = s;
-        }
-      }
+    const currentScore = this.correlation(chromaAt(this.current.tonic), this.current.mode, norm) - this.homeCost(this.current);
+    if (this.candidatesFor !== this.current || this.candidatesGuessing !== this.guessing) {
+      this.candidatesGuessing = this.guessing;
+      this.candidates = MODES.flatMap((mode) => Array.from({ length: 12 }, (_, chroma) => this.spelledKey(chroma, mode)));
+      this.candidatesFor = this.current;
     }
-    if (bestChroma >= 0 && bestScore - currentScore > this.p.hysteresis) this.current = this.nearestSpelledKey(bestChroma, bestMode);
+    let best: Key | undefined;
+    let bestScore = currentScore;
+    let top = -Infinity;
+    const scores = this.scores;
+    this.candidates.forEach((key, i) => {
+      const s = this.correlation(chromaAt(key.tonic), key.mode, norm) - this.homeCost(key);
+      scores[i] = s;
+      if (s > top) top = s;
+      if (s > bestScore) {
+        best = key;
+        bestScore = s;
+      }
+    });
+    if (this.p.keySoftness > 0) {
+      let sum = 0;
+      let weight = 0;
+      this.candidates.forEach((key, i) => {
+        const w = Math.exp((scores[i]! - top) / this.p.keySoftness);
+        sum += w * windowCentreOf(key);
+        weight += w;
+      });
+      this.softCentre = sum / weight;
+    }
+    // A guessed start gives way only once as many notes have been heard as it counts for.
+    if (this.guessing && this.heard < this.p.initialWeight) return;
+    if (best && bestScore - currentScore > this.p.hysteresis) {
+      this.current = best;
+      this.guessing = false;
+    }
   }
 
   /**
-   * The spelling of a key (tonic chroma and mode) as written: at most seven sharps or flats in its
-   * signature, and of two such spellings (F♯ or G♭ major) the one nearer the current key.
+   * The name of a key (tonic chroma and mode): of its enharmonic names (F♯ or G♭ major) the one
+   * whose window is nearer the current key's, or, while the current key is only a guess, nearer the
+   * naming centre; ties go sharpward. Keys are written with at most seven sharps or flats, but a
+   * modulation to the dominant or subdominant may pass through one with eight (G♯ major from C♯
+   * minor); from there the name comes back within seven at the next key, and cannot walk further.
    */
-  private nearestSpelledKey(tonicChroma: number, mode: Key['mode']): Key {
+  private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
     const base = mod(7 * tonicChroma, 12);
+    const from = this.guessing ? this.p.namingCentre : windowCentreOf(this.current);
     let best: Key | undefined;
+    let bestCost = Infinity;
     for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
       const key: Key = { tonic, mode };
-      if (Math.abs(signatureOf(key) + 1) > 7) continue;
-      if (!best || Math.abs(signatureOf(key) - signatureOf(this.current)) < Math.abs(signatureOf(best) - signatureOf(this.current))) best = key;
+      const accidentals = Math.abs(signatureOf(key) + 1);
+      const beyond = accidentals > MAX_SIGNATURE;
+      if (beyond && (this.guessing || accidentals > MAX_SIGNATURE + 1 || Math.abs(tonic - this.current.tonic) > 1)) continue;
+      const cost = Math.abs(windowCentreOf(key) - from) + (beyond ? BEYOND_COST : 0) + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
+      if (cost <= bestCost) {
+        best = key;
+        bestCost = cost;
+      }
     }
     return best ?? { tonic: base, mode };
   }
@@ -166,24 +326,110 @@ export class FollowSpeller implements Speller {
     return this.current;
   }
 
+  /** The centre new notes are spelled around: the key's window centre, drawn towards the local centre. */
+  private centre(): number {
+    const keyCentre = Number.isNaN(this.softCentre) ? windowCentreOf(this.current) : this.softCentre;
+    let centre = keyCentre;
+    if (this.localWeight > 0 && this.p.localShare > 0) {
+      const share = (this.p.localShare * this.localWeight) / (this.localWeight + 1);
+      centre = (1 - share) * keyCentre + share * this.localCentre();
+    }
+    const pull = Math.min(1, HOME_PULL * this.p.homeStrength);
+    return centre + pull * (this.homeCentre - centre);
+  }
+
   spell(notes: readonly NoteContext[]): SpelledPitch[] {
     if (notes.length === 0) return [];
     if (!this.frozen) {
       this.decayTo(notes[0]!.time);
       for (const n of notes) this.weights[mod(n.key, 12)]! += 1;
+      this.heard += notes.length;
       this.update();
     }
-    // The whole group counts before any of it is spelled, and all of it takes one window:
-    // notes that begin together are spelled together, as a compact group.
-    const window = this.currentWindow();
-    return notes.map((n) => {
+    // The whole group counts before any of it is spelled, and it is spelled as one chord.
+    const centre = this.centre();
+    const fifths = this.spellChord(notes, centre);
+    return notes.map((n, i) => {
       this.held.set(noteId(n), mod(n.key, 12));
-      return onKey(spellChroma(window, mod(n.key, 12)), n.key);
+      const f = this.withinReach(fifths[i]!);
+      if (!this.frozen) {
+        this.localWeight += 1;
+        const c = mod(n.key, 12);
+        this.chromaF[c] = f;
+        this.chromaT[c] = n.time;
+      }
+      return onKey(pitchClass(f), n.key);
     });
   }
 
+  /**
+   * Line-of-fifths positions for a chord: each note's spelling nearest `centre`, or, where the
+   * chord has two or more chromas, the set (each note nearest the centre or one enharmonic step
+   * beyond) that minimises the distance from the centre plus `chordCompactness` times the chord's
+   * spread on the line of fifths.
+   */
+  private spellChord(notes: readonly NoteContext[], centre: number): number[] {
+    const nearest = notes.map((n) => nearestFifths(mod(n.key, 12), centre));
+    if (notes.length < 2 || this.p.chordCompactness === 0) return nearest;
+    const chromas: number[] = [];
+    const near: number[] = [];
+    for (let i = 0; i < notes.length; i++) {
+      const chroma = mod(notes[i]!.key, 12);
+      if (!chromas.includes(chroma)) {
+        chromas.push(chroma);
+        near.push(nearest[i]!);
+      }
+    }
+    if (chromas.length < 2 || chromas.length > 8) return nearest;
+    // Each chroma may move to its other spelling on the far side of the centre (2 choices each).
+    let bestMask = 0;
+    let bestCost = Infinity;
+    let bestSpread = 0;
+    let triadMask = -1;
+    let triadDistance = Infinity;
+    const count = 1 << chromas.length;
+    for (let mask = 0; mask < count; mask++) {
+      let lo = Infinity;
+      let hi = -Infinity;
+      let distance = 0;
+      for (let i = 0; i < chromas.length; i++) {
+        const f = (mask >> i) & 1 ? alternative(near[i]!, centre) : near[i]!;
+        if (f < lo) lo = f;
+        if (f > hi) hi = f;
+        distance += Math.abs(f - centre);
+      }
+      const spread = hi - lo;
+      const cost = distance + this.p.chordCompactness * spread;
+      if (cost < bestCost - 1e-9) {
+        bestCost = cost;
+        bestMask = mask;
+        bestSpread = spread;
+      }
+      if (spread <= TRIAD_SPREAD && distance < triadDistance - 1e-9) {
+        triadDistance = distance;
+        triadMask = mask;
+      }
+    }
+    // Three or more chromas that can be spelled as a triad are not spelled with an augmented second
+    // or a diminished fourth (a spread of 7 fifths or more).
+    if (chromas.length >= 3 && bestSpread >= 7 && triadMask >= 0) bestMask = triadMask;
+    if (bestMask === 0) return nearest;
+    return notes.map((n) => {
+      const i = chromas.indexOf(mod(n.key, 12));
+      return (bestMask >> i) & 1 ? alternative(near[i]!, centre) : near[i]!;
+    });
+  }
+
+  /** A position moved by 12 fifths where it lies more than `windowReach` beyond the key's window. */
+  private withinReach(f: number): number {
+    const lowest = windowCentreOf(this.current) - 5.5 - this.p.windowReach;
+    if (f < lowest) return f + 12;
+    if (f > lowest + 11 + 2 * this.p.windowReach) return f - 12;
+    return f;
+  }
+
   peek(note: NoteContext): SpelledPitch {
-    return spellKey(this.currentWindow(), note.key);
+    return onKey(pitchClass(this.withinReach(nearestFifths(mod(note.key, 12), this.centre()))), note.key);
   }
 
   noteOff(note: NoteContext): void {
@@ -191,12 +437,23 @@ export class FollowSpeller implements Speller {
   }
 
   currentWindow(): KeyboardWindow {
-    return keyWindow(asDeclared(this.current));
+    return keyboardWindow(Math.round(this.centre() - 5.5));
   }
 }
 
 function chromaAt(fifths: number): number {
   return mod(7 * fifths, 12);
+}
+
+/** The line-of-fifths position of `chroma` nearest `centre`, ties going sharpward (as a window's spelling). */
+function nearestFifths(chroma: number, centre: number): number {
+  const base = mod(7 * chroma, 12);
+  return base + 12 * Math.round((centre - base) / 12);
+}
+
+/** The other spelling of a position, on the far side of the centre. */
+function alternative(f: number, centre: number): number {
+  return f <= centre ? f + 12 : f - 12;
 }
 
 function noteId(n: NoteContext): number {

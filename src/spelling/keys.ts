@@ -14,17 +14,43 @@ export interface DeclaredKey {
 /** Where each mode's tonic sits in its diatonic set of seven fifths (F C G D A E B: Lydian F = 0, Ionian C = 1 …). */
 const MODE_DEGREE: Readonly<Record<Mode, number>> = { lydian: 0, major: 1, ionian: 1, mixolydian: 2, dorian: 3, minor: 4, aeolian: 4, phrygian: 5, locrian: 6 };
 
-const ALIASES: Readonly<Record<string, Mode>> = { maj: 'major', min: 'minor', m: 'minor' };
+/** Short forms of the modes, matched without regard to case except `M` (see parseKey). */
+const ALIASES: Readonly<Record<string, Mode>> = { maj: 'major', min: 'minor', m: 'minor', dur: 'major', moll: 'minor' };
 
-/** Parses `D minor`, `Bb major`, `F# dorian`, `Dm`, `G` (major when no mode is given). */
+/** Keys are written with at most seven sharps or flats (common practice, no source). */
+export const MAX_KEY_ACCIDENTALS = 7;
+
+const ACCEPTED = '"D minor", "Dm", "D major", "F# minor", "Bb major", "E flat major", "E phrygian"';
+
+/**
+ * Parses a key as musicians write it: `D minor`, `d minor`, `Dm`, `Dmin`, `D`, `D major`, `Dmaj`,
+ * `F# minor`, `Bb major`, `F♯ minor`, `E flat major`, `F sharp minor`, `E phrygian`; a tonic alone
+ * is major. Refused: a chord symbol's `M` (`DM`: major in chord symbols, minor to some readers), a
+ * lowercase tonic alone (`d`: minor in some traditions, major in others) and keys of more than
+ * seven sharps or flats (named with their enharmonic), each with the accepted forms.
+ */
 export function parseKey(text: string, what = 'key'): DeclaredKey {
-  const match = /^\s*([A-Ga-g][#b♯♭x𝄪𝄫]*)\s*([A-Za-z]*)\s*$/u.exec(text);
-  if (!match) throw new UserError(`${what} "${text}" is not a key: write a tonic and a mode, as in "D minor", "Bb major", "E phrygian"`);
-  const [, tonicText = '', modeText = ''] = match;
+  const words = text.trim().replace(/[\s-]*flat\b/giu, 'b').replace(/[\s-]*sharp\b/giu, '#');
+  const match = /^([A-Ga-g])([#b♯♭x𝄪𝄫]*)(?:\s*-?\s*)([A-Za-z]*)$/u.exec(words);
+  if (!match) throw new UserError(`${what} "${text}" is not a key: write a tonic and a mode, as in ${ACCEPTED}`);
+  const [, letter = '', accidentals = '', modeText = ''] = match;
+  if (modeText === 'M') throw new UserError(`${what} "${text}" is ambiguous: "M" means major in chord symbols; write "${letter.toUpperCase()}${accidentals} major" or "${letter.toUpperCase()}${accidentals} minor"`);
+  if (modeText === '' && letter === letter.toLowerCase()) {
+    const tonic = `${letter.toUpperCase()}${accidentals}`;
+    throw new UserError(`${what} "${text}" is ambiguous: a lowercase tonic alone means minor to some and major to others; write "${tonic} major" or "${tonic} minor" (accepted: ${ACCEPTED})`);
+  }
   const lower = modeText.toLowerCase();
   const mode = lower === '' ? 'major' : (ALIASES[lower] ?? (MODES as readonly string[]).find((m) => m === lower));
-  if (mode === undefined) throw new UserError(`${what} "${text}": unknown mode "${modeText}" (use ${MODES.join(', ')})`);
-  return { tonic: parsePitchClass(tonicText, what), mode: mode as Mode };
+  if (mode === undefined) throw new UserError(`${what} "${text}": unknown mode "${modeText}" (use ${MODES.join(', ')}, or m, min, maj; accepted: ${ACCEPTED})`);
+  const key: DeclaredKey = { tonic: parsePitchClass(`${letter.toUpperCase()}${accidentals}`, what), mode: mode as Mode };
+  const signature = keySignatureOf(key) + 1;
+  if (Math.abs(signature) > MAX_KEY_ACCIDENTALS) {
+    const enharmonic: DeclaredKey = { tonic: { fifths: key.tonic.fifths - 12 * Math.sign(signature) }, mode: key.mode };
+    throw new UserError(
+      `${what} "${text}" has ${Math.abs(signature)} ${signature > 0 ? 'sharps' : 'flats'}; keys go up to ${MAX_KEY_ACCIDENTALS}: write ${formatKey(enharmonic)}`,
+    );
+  }
+  return key;
 }
 
 export function formatKey(key: DeclaredKey): string {

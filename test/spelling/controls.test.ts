@@ -182,6 +182,6 @@ describe('setup files', () => {
     expect(text.some((t) => t.startsWith('$.controls[1]:') && t.includes('exactly one of'))).toBe(true);
     expect(text.some((t) => t.startsWith('$.splitKeys[0]:'))).toBe(true);
     const second = checkSetup(JSON.stringify({ spelling: { key: 'H minor' }, controls: [{ program: 2, action: 'set-key' }] }), 'setup.json').problems.map((p) => `${p.path}: ${p.message}`);
-    expect(second).toEqual(['$.spelling.key: key "H minor" is not a key: write a tonic and a mode, as in "D minor", "Bb major", "E phrygian"', '$.controls[0]: "set-key" needs a "key", such as "D minor"']);
+    expect(second).toEqual(['$.spelling.key: key "H minor" is not a key: write a tonic and a mode, as in "D minor", "Dm", "D major", "F# minor", "Bb major", "E flat major", "E phrygian"', '$.controls[0]: "set-key" needs a "key", such as "D minor"']);
   });
 });

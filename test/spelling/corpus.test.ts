@@ -1,38 +1,73 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { loadCorpus } from '../../bench/corpus.js';
+import { CORPORA, corpusDir, loadCorpus, type CorpusName } from '../../bench/corpus.js';
 import { parseWrittenSpellings, scoreSpelling, spellEvents } from '../../src/spelling/accuracy.js';
 import { FollowSpeller } from '../../src/spelling/follow.js';
-import { fixedSpeller } from '../../src/spelling/speller.js';
+import { fixedSpeller, type Speller } from '../../src/spelling/speller.js';
 
-// The open corpus in corpus/mozart: Mozart piano sonatas with their written spellings,
-// derived from Craig Stuart Sapp's digital edition of the Alte Mozart-Ausgabe (1878),
-// CC BY-NC-SA 4.0 (see its LICENSE.md). Causal spelling is compared with the notes as written.
-const corpus = loadCorpus();
+// The open corpora in corpus/ (each with its LICENSE.md; CC BY-NC-SA 4.0): Mozart piano sonatas
+// (from Craig Stuart Sapp's digital edition of the Alte Mozart-Ausgabe), Scarlatti sonatas, Bach's
+// English and French suites, Schütz's Kleine geistliche Konzerte and Corelli's trio sonatas, each
+// with the notes' written spellings. Causal spelling is compared with the notes as written.
 
-function score(make: () => ReturnType<typeof fixedSpeller>): { notes: number; correct: number } {
-  let notes = 0;
-  let correct = 0;
-  for (const m of corpus) {
-    const r = scoreSpelling(spellEvents(m.midi.events, make()), parseWrittenSpellings(readFileSync(m.csvPath, 'utf8')));
-    notes += r.notes;
-    correct += r.correct;
+/**
+ * What `follow` reaches on each corpus with its defaults (printed by `npm run bench`, both halves):
+ * the floors asserted here. The goal is 99.5% everywhere; Mozart (99.05%) and Scarlatti (99.46%)
+ * fall short of it, and their floors say so.
+ */
+const FOLLOW_FLOOR: Readonly<Record<CorpusName, number>> = {
+  mozart: 0.990,
+  scarlatti: 0.994,
+  'bach-suites': 0.995,
+  schuetz: 0.995,
+  corelli: 0.995,
+};
+
+/** Notes per corpus (corpus/README.md and the issue that added them). */
+const NOTES: Readonly<Record<CorpusName, number>> = {
+  mozart: 96_635,
+  scarlatti: 67_597,
+  'bach-suites': 56_301,
+  schuetz: 48_039,
+  corelli: 68_143,
+};
+
+/**
+ * The fixed window's figures as the corpora were described: about 96% of the Mozart corpus
+ * (../shared/DESIGN.md, recorded in the README) and 99.89% of the Schütz corpus (the issue that
+ * added the early corpora).
+ */
+const FIXED_RANGE: Partial<Record<CorpusName, readonly [number, number]>> = {
+  mozart: [0.95, 0.97],
+  schuetz: [0.998, 0.9995],
+};
+
+describe('spelling accuracy on the open corpora', () => {
+  for (const name of CORPORA) {
+    it(`${name}: follow spells at least ${(100 * FOLLOW_FLOOR[name]).toFixed(1)}% as written, and no less than the fixed Eb..G# window`, () => {
+      const corpus = loadCorpus(corpusDir(name));
+      const score = (make: () => Speller) => {
+        let notes = 0;
+        let correct = 0;
+        for (const m of corpus) {
+          const r = scoreSpelling(spellEvents(m.midi.events, make()), parseWrittenSpellings(readFileSync(m.csvPath, 'utf8')));
+          notes += r.notes;
+          correct += r.correct;
+        }
+        return { notes, correct };
+      };
+      const follow = score(() => new FollowSpeller());
+      const fixed = score(() => fixedSpeller());
+      // Every onset of every movement matched its written spelling: the whole corpus is scored.
+      expect(follow.notes).toBe(NOTES[name]);
+      expect(fixed.notes).toBe(NOTES[name]);
+      expect(follow.correct / follow.notes).toBeGreaterThanOrEqual(FOLLOW_FLOOR[name]);
+      expect(follow.correct).toBeGreaterThanOrEqual(fixed.correct);
+      const range = FIXED_RANGE[name];
+      if (range) {
+        expect(fixed.correct / fixed.notes).toBeGreaterThan(range[0]);
+        expect(fixed.correct / fixed.notes).toBeLessThan(range[1]);
+      }
+    });
   }
-  return { notes, correct };
-}
-
-describe('spelling accuracy on the open corpus', () => {
-  it('has the corpus: every movement’s onsets match its written spellings', () => {
-    expect(corpus.length).toBeGreaterThanOrEqual(60);
-    const fixed = score(() => fixedSpeller());
-    expect(fixed.notes).toBeGreaterThan(90_000);
-    // ../shared/DESIGN.md: a plain Eb..G# window spells about 96% of this corpus.
-    expect(fixed.correct / fixed.notes).toBeGreaterThan(0.95);
-    expect(fixed.correct / fixed.notes).toBeLessThan(0.97);
-  });
-
-  it('follow spells at least 98.5% of the notes as written', () => {
-    const follow = score(() => new FollowSpeller());
-    expect(follow.correct / follow.notes).toBeGreaterThanOrEqual(0.985);
-  });
 });

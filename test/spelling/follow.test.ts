@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { formatSpelledPitch, parseSpelledPitch, keyOf } from '../../src/pitch/index.js';
-import { FollowSpeller } from '../../src/spelling/follow.js';
-import { parseKey } from '../../src/spelling/keys.js';
+import { FollowSpeller, signatureOf, windowCentreOf } from '../../src/spelling/follow.js';
+import { keySignatureOf, keyWindow, parseKey } from '../../src/spelling/keys.js';
 import { createStrategy } from '../../src/spelling/strategy.js';
 import type { Speller } from '../../src/spelling/speller.js';
 
@@ -86,6 +86,18 @@ describe('follow: spelling from the harmony heard', () => {
     speller.setFrozen(false);
     play(speller, Array.from({ length: 20 }, () => ['E3', 'G#3', 'B3']));
     expect(play(speller, [['Ab3']])[0]).toEqual(['G#3']);
+  });
+});
+
+describe('follow: keys on the line of fifths', () => {
+  it('places every key as keys.ts does (signature and window)', () => {
+    for (let tonic = -12; tonic <= 12; tonic++) {
+      for (const mode of ['major', 'minor'] as const) {
+        const declared = { tonic: { fifths: tonic }, mode };
+        expect(signatureOf({ tonic, mode })).toBe(keySignatureOf(declared));
+        expect(windowCentreOf({ tonic, mode })).toBe(keyWindow(declared).lowest + 5.5);
+      }
+    }
   });
 });
 
