@@ -3,6 +3,7 @@
 import { disableMidi } from '../src/io/midi-system.js';
 import { benchAudio } from './audio.js';
 import { benchLatency, benchSoak } from './live.js';
+import { benchRender } from './render.js';
 import { benchRouter } from './router.js';
 import { benchSpelling } from './spelling.js';
 import { benchTuning } from './tuning.js';
@@ -15,6 +16,7 @@ if (!soakOnly) {
   benchRouter();
   benchSpelling();
   benchAudio();
+  await benchRender();
   await benchLatency();
 }
 await benchSoak(minutes);
