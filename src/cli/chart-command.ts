@@ -6,7 +6,7 @@ import { loadTuningPreset } from '../presets/tuning-presets.js';
 import { A440, DEFAULT_WOLF_LIMITS, frequency, parseReference } from '../tuning/index.js';
 import { renderDyads } from '../audio/preview.js';
 import { writeWav } from '../audio/wav.js';
-import { writeOutputFile } from '../util/files.js';
+import { checkOutputPath, writeOutputFile } from '../util/files.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from './io.js';
 import { integerOption, numberOption } from './options.js';
@@ -42,6 +42,7 @@ export function registerChart(program: Command, io: CommandIo): void {
     .option('--listen <file.wav>', 'also write the chart’s fifths and thirds as sustained dyads, to hear the beats and the wolves')
     .action((tuningArg: string, options: ChartOptions) => {
       const preset = loadTuningPreset(tuningArg);
+      if (options.listen) checkOutputPath('--listen', options.listen, 'wav', [preset.file]);
       const reference = options.ref !== undefined ? parseReference(options.ref, '--ref') : (preset.reference ?? A440);
       const range = parseFifthsRange(`${options.from}..${options.to}`, '--from/--to');
       const chart = buildChart({
@@ -53,7 +54,7 @@ export function registerChart(program: Command, io: CommandIo): void {
       });
       if (options.listen) {
         const pairs = chart.intervals.map((i) => [frequency(preset.tuning, reference, i.lower), frequency(preset.tuning, reference, i.upper)] as const);
-        writeOutputFile(options.listen, writeWav(renderDyads(pairs, 44_100), 16));
+        writeOutputFile('--listen', options.listen, 'wav', writeWav(renderDyads(pairs, 44_100), 16), [preset.file]);
       }
       if (options.json) {
         const meta = { id: preset.id, name: preset.name, kind: preset.kind, source: preset.source };

@@ -3,6 +3,7 @@ import { disableMidi, enableMidi, listPorts } from '../io/midi-system.js';
 import { startSession, type Session, type SessionOptions } from '../live/session.js';
 import { formatRange } from '../pitch/index.js';
 import { UserError } from '../util/errors.js';
+import { checkSessionOutputs, engineInputFiles } from './command-files.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import type { CommandIo } from './io.js';
 import { channelsOf, describeSetup } from './render-command.js';
@@ -94,9 +95,11 @@ export function registerPlay(program: Command, io: CommandIo): void {
     const resolved = resolveEngineCli(cli);
     const inputs = cli.in ?? [];
     if (inputs.length === 0 || !cli.out) throw new UserError('play needs --in PORT and --out PORT (run "diesis ports" to list them)', 2);
+    const inputFiles = engineInputFiles(resolved);
+    checkSessionOutputs(cli.log, cli.record, inputFiles);
     const { engine, title } = sessionTitle(resolved);
     const code = await runUntilStopped(
-      { inputs, output: cli.out, engine, speller: resolved.speller, strategy: resolved.strategy, title, wait: cli.wait, quiet: cli.quiet, logFile: cli.log, recordFile: cli.record, ascii: cli.ascii },
+      { inputs, output: cli.out, engine, speller: resolved.speller, strategy: resolved.strategy, title, wait: cli.wait, quiet: cli.quiet, logFile: cli.log, recordFile: cli.record, inputFiles, ascii: cli.ascii },
       io,
       cli.stopAfter,
     );

@@ -1,10 +1,10 @@
 import type { Command } from 'commander';
-import { existsSync, readFileSync } from 'node:fs';
 import { relative } from 'node:path';
 import { formatProblem, parseJsonText } from '../presets/problems.js';
 import { checkSetup } from '../presets/setup-file.js';
 import { checkTuningPreset, loadBuiltInTuningPresets, PRESETS_DIR } from '../presets/tuning-presets.js';
 import { UserError } from '../util/errors.js';
+import { readTextFile } from '../util/files.js';
 import type { CommandIo } from './io.js';
 import { makeStyle, wantsColour } from './style.js';
 import { renderTable } from './table.js';
@@ -43,8 +43,7 @@ export function registerPresetCommands(program: Command, io: CommandIo): void {
     .description('validate a tuning or setup file and print every problem in it')
     .argument('<file>', 'a tuning or setup .json file (a tuning has a "kind")')
     .action((file: string) => {
-      if (!existsSync(file)) throw new UserError(`${file}: no such file`);
-      const text = readFileSync(file, 'utf8');
+      const text = readTextFile(file);
       const isTuning = (() => {
         const json = parseJsonText(text, file);
         return typeof json === 'object' && json !== null && 'kind' in json;
