@@ -1,5 +1,5 @@
 import { Option, type Command } from 'commander';
-import { loadSampleSet, type LoadedSampleSet } from '../audio/sample-set.js';
+import { checkSetPlays, loadSampleSet, type LoadedSampleSet } from '../audio/sample-set.js';
 import { parseWindow } from '../pitch/index.js';
 import { loadSetupFile, type SetupFile } from '../presets/setup-file.js';
 import { loadTuningPreset, type TuningPreset } from '../presets/tuning-presets.js';
@@ -76,8 +76,8 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const setup = cli.setup === undefined ? undefined : loadSetupFile(cli.setup);
   const json = setup?.json;
   const sampleSet = cli.sampleSet === undefined ? undefined : loadSampleSet(cli.sampleSet);
-  const preset = loadTuningPreset(cli.tuning ?? json?.tuning ?? 'meantone-1-4');
-  const refText = cli.ref ?? json?.reference;
+  const preset = loadTuningPreset(cli.tuning ?? json?.tuning ?? sampleSet?.manifest.tuningId ?? 'meantone-1-4'); // a set plays in its own tuning by default
+  const refText = cli.ref ?? json?.reference ?? sampleSet?.manifest.reference;
   const mode = sampleSet ? 'samples' : (cli.mode ?? json?.output?.mode ?? 'bend');
   const channelText = cli.channels ?? json?.output?.channels ?? '2-16';
   const channels = parseChannels(channelText);
@@ -109,5 +109,6 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     controls: setup && setup.bindings.length > 0 ? new ControlMap(setup.bindings, speller) : undefined,
     gather: cli.gather ?? json?.spelling?.gatherMs,
   };
+  if (sampleSet) checkSetPlays(sampleSet, { tuning: preset.tuning, tuningName: preset.name, reference: options.reference, mode: cli.mode ?? json?.output?.mode });
   return { preset, setup, strategy, speller, options, sampleSet };
 }
