@@ -1,5 +1,8 @@
 import { SynthModel, type ModelVoice } from '../synth/reference-synth.js';
 
+/** Frames rendered between two progress reports at most (about 0.1 s at 44.1 kHz). */
+const BLOCK_FRAMES = 4096;
+
 /** Sounds one voice: adds its samples for frames `from` to `to` at `hz`; `ended` once its key and pedal are up. */
 export interface VoicePlayer {
   play(out: Float32Array, from: number, to: number, hz: number, ended: boolean): void;
@@ -25,19 +28,26 @@ export function renderThroughSynth(
   const out = new Float32Array(Math.ceil((lastMs / 1000 + 2 * releaseSeconds + 0.5) * sampleRate));
   const players = new Map<ModelVoice, VoicePlayer>();
   let cursor = 0;
+  // Progress follows the frames rendered (the work), in blocks, so the bar moves steadily even
+  // across a long stretch between two messages.
+  let reported = -Infinity;
   const renderUntil = (frame: number): void => {
     const to = Math.min(frame, out.length);
-    for (const [voice, player] of players) player.play(out, cursor, to, synth.frequency(voice), voice.state === 'tail');
-    cursor = Math.max(cursor, to);
+    while (cursor < to) {
+      const end = Math.min(to, cursor + BLOCK_FRAMES);
+      for (const [voice, player] of players) player.play(out, cursor, end, synth.frequency(voice), voice.state === 'tail');
+      cursor = end;
+      if (progress && cursor / out.length - reported >= 0.005) progress((reported = cursor / out.length));
+    }
     for (const voice of [...players.keys()]) if (!synth.voices.includes(voice)) players.delete(voice);
   };
-  sorted.forEach((m, i) => {
+  progress?.((reported = 0));
+  for (const m of sorted) {
     renderUntil(Math.round((m.time / 1000) * sampleRate));
     const voice = synth.receive(m.time, m.data);
     const player = voice && start(voice);
     if (voice && player) players.set(voice, player);
-    if (i % 2000 === 0) progress?.(i / sorted.length);
-  });
+  }
   for (let t = lastMs; cursor < out.length; t += 50) {
     synth.advance(t);
     renderUntil(cursor + Math.round(0.05 * sampleRate));

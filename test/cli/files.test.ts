@@ -37,6 +37,7 @@ function expectUntouched(dir: string, before: Map<string, Buffer>): void {
 function playersFolder(): string {
   const dir = tempDir('diesis-player-');
   copyFileSync(MOVEMENT, join(dir, 'piece.mid'));
+  copyFileSync(MOVEMENT, join(dir, 'ok.mid')); // an earlier output, which a failed command must not replace
   writeFileSync(join(dir, 'take.wav'), writeWav({ sampleRate: 44_100, channels: [Float32Array.from({ length: 4410 }, (_, n) => Math.sin(n / 10) * 0.2)] }, 16));
   writeFileSync(join(dir, 'notes.txt'), 'fingering for bar 12: 2-3-2\n');
   writeFileSync(join(dir, 'fake.mid'), 'not a MIDI file at all, but mine\n');
