@@ -28,6 +28,7 @@ export async function benchRender(sizes: readonly number[] = [5_000, 10_000, 20_
   const dir = mkdtempSync(join(tmpdir(), 'diesis-bench-render-'));
   const quiet = { write: () => undefined };
   const perNote: number[] = [];
+  const totals: number[] = [];
   try {
     const warm = join(dir, 'warm.mid');
     writeFileSync(warm, syntheticPiece(2_000));
@@ -39,10 +40,13 @@ export async function benchRender(sizes: readonly number[] = [5_000, 10_000, 20_
       const code = await main(['node', 'diesis', 'render', input, '-o', join(dir, `out-${notes}.mid`)], { stdout: quiet, stderr: quiet });
       const ms = performance.now() - t0;
       perNote.push(ms / notes);
+      totals.push(ms);
       process.stdout.write(`${String(notes).padStart(6)} notes  ${(ms / 1000).toFixed(2).padStart(6)} s  ${((ms / notes) * 1000).toFixed(1).padStart(6)} µs per note${code === 0 ? '' : `  (exit ${code})`}\n`);
     }
     const ratio = (perNote[perNote.length - 1] ?? NaN) / (perNote[0] ?? NaN);
-    process.stdout.write(`time per note, longest file over shortest: ${ratio.toFixed(2)} (1.00 = linear)\n`);
+    const added = ((totals[totals.length - 1] ?? NaN) - (totals[0] ?? NaN)) / ((sizes[sizes.length - 1] ?? NaN) - (sizes[0] ?? NaN));
+    process.stdout.write(`time per note, longest file over shortest: ${ratio.toFixed(2)} (1.00 = linear; below 1 the fixed start-up cost dominates)\n`);
+    process.stdout.write(`each added note costs ${(added * 1000).toFixed(1)} µs (from the shortest to the longest file)\n`);
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }
