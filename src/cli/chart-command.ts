@@ -2,11 +2,11 @@ import type { Command } from 'commander';
 import { buildChart, chartJson } from '../chart/chart.js';
 import { chartCsv, chartText } from '../chart/chart-text.js';
 import { parseFifthsRange } from '../pitch/index.js';
-import { loadTuningPreset } from '../presets/tuning-presets.js';
+import { loadTuningPreset, type TuningPreset } from '../presets/tuning-presets.js';
 import { A440, DEFAULT_WOLF_LIMITS, frequency, parseReference } from '../tuning/index.js';
 import { renderDyads } from '../audio/preview.js';
 import { writeWav } from '../audio/wav.js';
-import { checkOutputPath, writeOutputFile } from '../util/files.js';
+import { runWithOutputs } from '../util/files.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from './io.js';
 import { integerOption, numberOption } from './options.js';
@@ -42,37 +42,43 @@ export function registerChart(program: Command, io: CommandIo): void {
     .option('--listen <file.wav>', 'also write the chart’s fifths and thirds as sustained dyads, to hear the beats and the wolves')
     .action((tuningArg: string, options: ChartOptions) => {
       const preset = loadTuningPreset(tuningArg);
-      if (options.listen) checkOutputPath('--listen', options.listen, 'wav', [preset.file]);
-      const reference = options.ref !== undefined ? parseReference(options.ref, '--ref') : (preset.reference ?? A440);
-      const range = parseFifthsRange(`${options.from}..${options.to}`, '--from/--to');
-      const chart = buildChart({
-        tuning: preset.tuning,
-        reference,
-        range,
-        octave: options.octave,
-        wolfLimits: { fifth: options.wolfFifth, third: options.wolfThird },
+      const text = runWithOutputs([preset.file], (outputs) => {
+        if (options.listen) outputs.claim('--listen', options.listen, 'wav');
+        const reference = options.ref !== undefined ? parseReference(options.ref, '--ref') : (preset.reference ?? A440);
+        const range = parseFifthsRange(`${options.from}..${options.to}`, '--from/--to');
+        const chart = buildChart({
+          tuning: preset.tuning,
+          reference,
+          range,
+          octave: options.octave,
+          wolfLimits: { fifth: options.wolfFifth, third: options.wolfThird },
+        });
+        const printed = chartOutput(chart, preset, options, io);
+        if (options.listen) {
+          const pairs = chart.intervals.map((i) => [frequency(preset.tuning, reference, i.lower), frequency(preset.tuning, reference, i.upper)] as const);
+          outputs.stage(options.listen, writeWav(renderDyads(pairs, 44_100), 16));
+        }
+        return printed;
       });
-      if (options.listen) {
-        const pairs = chart.intervals.map((i) => [frequency(preset.tuning, reference, i.lower), frequency(preset.tuning, reference, i.upper)] as const);
-        writeOutputFile('--listen', options.listen, 'wav', writeWav(renderDyads(pairs, 44_100), 16), [preset.file]);
-      }
-      if (options.json) {
-        const meta = { id: preset.id, name: preset.name, kind: preset.kind, source: preset.source };
-        io.stdout.write(JSON.stringify(chartJson(chart, meta), null, 2) + '\n');
-      } else if (options.csv !== undefined) {
-        const table = options.csv === true ? 'notes' : options.csv;
-        if (table !== 'notes' && table !== 'intervals') throw new UserError(`--csv "${table}" must be "notes" or "intervals"`, 2);
-        io.stdout.write(chartCsv(chart, table));
-      } else {
-        const ascii = options.ascii === true;
-        io.stdout.write(
-          chartText(chart, {
-            ascii,
-            style: makeStyle(wantsColour(io.stdout)),
-            title: `${preset.name} (${preset.kind})`,
-            subtitle: preset.source,
-          }),
-        );
-      }
+      io.stdout.write(text);
     });
+}
+
+/** The chart as the options ask: JSON, CSV or tables. */
+function chartOutput(chart: ReturnType<typeof buildChart>, preset: TuningPreset, options: ChartOptions, io: CommandIo): string {
+  if (options.json) {
+    const meta = { id: preset.id, name: preset.name, kind: preset.kind, source: preset.source };
+    return JSON.stringify(chartJson(chart, meta), null, 2) + '\n';
+  }
+  if (options.csv !== undefined) {
+    const table = options.csv === true ? 'notes' : options.csv;
+    if (table !== 'notes' && table !== 'intervals') throw new UserError(`--csv "${table}" must be "notes" or "intervals"`, 2);
+    return chartCsv(chart, table);
+  }
+  return chartText(chart, {
+    ascii: options.ascii === true,
+    style: makeStyle(wantsColour(io.stdout)),
+    title: `${preset.name} (${preset.kind})`,
+    subtitle: preset.source,
+  });
 }

@@ -106,6 +106,14 @@ describe('output files: written only when the whole command succeeds', () => {
     expect(readdirSync(dir).sort()).toEqual(['cut.mid', 'ok.mid']);
   });
 
+  it('writes no --listen file when the chart itself is refused', async () => {
+    const dir = tempDir('diesis-outputs-');
+    const result = await runCli('chart', 'meantone-1-4', '--listen', join(dir, 'dyads.wav'), '--csv', 'wobble');
+    expect(result.code).toBe(2);
+    expect(result.stderr).toMatch(/--csv "wobble"/u);
+    expect(readdirSync(dir)).toEqual([]);
+  });
+
   it('writes -o and --wav together, through temporary files that do not stay', async () => {
     const dir = tempDir('diesis-outputs-');
     const input = join(dir, 'two.mid');
