@@ -12,7 +12,7 @@ import { UserError } from './errors.js';
 const MiB = 1024 * 1024;
 
 /** The largest file of each kind diesis reads. */
-export const READ_LIMITS = { midi: 64 * MiB, text: 4 * MiB, wav: 1024 * MiB } as const;
+export const READ_LIMITS = { midi: 16 * MiB, text: 4 * MiB, wav: 1024 * MiB } as const;
 
 const CHUNK = 64 * 1024;
 

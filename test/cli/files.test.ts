@@ -144,6 +144,11 @@ describe('bounded reading', () => {
     expect(Math.max(...parsed.track.flatMap((t) => t.event.map((e) => e.deltaTime)))).toBeLessThanOrEqual(MAX_DELTA);
     const offs = readWithIndependentParser(readFileSync(output)).messages.filter((m) => (m.data[0]! & 0xf0) === 0x80 || ((m.data[0]! & 0xf0) === 0x90 && m.data[2] === 0));
     expect(offs[0]?.tick).toBe(9 * MAX_DELTA);
+    // As audio that silence (73,722 beats at 120 bpm, 32767 ticks per beat) would last 10.2 hours: refused in one line, and the MIDI output of the same command is not written.
+    const both = await runCli('render', input, '-o', join(dir, 'both.mid'), '--wav', join(dir, 'both.wav'));
+    expect(both.code).toBe(1);
+    expect(both.stderr).toBe('diesis: the audio would last 10.2 hours; an audio preview is at most 4 hours (is there a very long silence in the file?)\n');
+    expect(readdirSync(dir).sort()).toEqual(['long-out.mid', 'long.mid']);
   });
 
   it.each([
@@ -164,7 +169,7 @@ describe('bounded reading', () => {
     const dir = tempDir('diesis-zero-');
     const asInput = await runCli('render', '/dev/zero', '-o', join(dir, 'out.mid'));
     expect(asInput.code).toBe(1);
-    expect(asInput.stderr).toMatch(/^diesis: \/dev\/zero: is not a regular file and gives more than 64 MB/u);
+    expect(asInput.stderr).toMatch(/^diesis: \/dev\/zero: is not a regular file and gives more than 16 MB/u);
     const asTuning = await runCli('spell', MOVEMENT, '--tuning', '/dev/zero');
     expect(asTuning.code).toBe(1);
     expect(asTuning.stderr).toMatch(/^diesis: \/dev\/zero: is not a regular file and gives more than 4\.0 MB/u);
