@@ -87,7 +87,7 @@ export function registerPlay(program: Command, io: CommandIo): void {
     .option('--out <port>', 'output port: name (case-insensitive substring) or index')
     .option('--wait', 'wait for missing ports instead of failing')
     .option('--quiet', 'no display')
-    .option('--log <file>', 'append every decision to a JSON Lines file')
+    .option('--log <file.jsonl>', 'append every decision to a JSON Lines file')
     .option('--record <file.mid>', 'write the take (input and output tracks) as a Standard MIDI File at the end')
     .option('--ascii', 'write # and b instead of ♯ and ♭')
     .option('--stop-after <seconds>', 'stop by itself after this long (for scripted runs)', numberOption('--stop-after', 0, 86_400));

@@ -96,11 +96,12 @@ export type OutputKind = 'midi' | 'wav' | 'log';
 const KINDS: Readonly<Record<OutputKind, { readonly label: string; readonly extensions: readonly string[]; readonly looksLike: (head: Uint8Array) => boolean }>> = {
   midi: { label: 'a Standard MIDI File (.mid)', extensions: ['.mid', '.midi', '.smf'], looksLike: (h) => ascii(h, 0, 4) === 'MThd' },
   wav: { label: 'a WAV file (.wav)', extensions: ['.wav', '.wave'], looksLike: (h) => ascii(h, 0, 4) === 'RIFF' && ascii(h, 8, 4) === 'WAVE' },
-  log: { label: 'a JSON Lines log (.jsonl)', extensions: ['.jsonl', '.log', '.ndjson', '.json', '.txt'], looksLike: (h) => h.length === 0 || h[0] === 0x7b /* { */ },
+  log: { label: 'a JSON Lines log (.jsonl)', extensions: ['.jsonl', '.ndjson', '.log', '.txt'], looksLike: (h) => h.length === 0 || h[0] === 0x7b /* { */ },
 };
 
 /** Extensions of files diesis reads or that belong to other programs: never an output of another kind. */
 const FOREIGN: Readonly<Record<string, string>> = {
+  '.json': 'a JSON file (a tuning, a setup, a manifest)',
   '.sfz': 'an SFZ mapping',
   '.xml': 'a MusicXML score',
   '.musicxml': 'a MusicXML score',
@@ -169,11 +170,8 @@ export function checkOutputPath(option: string, path: string, kind: OutputKind, 
   const spec = KINDS[kind];
   const ext = extname(path).toLowerCase();
   const other = kindOfExtension(ext);
-  if (other !== undefined && other !== kind) {
-    throw new UserError(`${option} ${path}: that names ${KINDS[other].label}, but ${option} writes ${spec.label}; give a name ending in ${spec.extensions[0]}`, 2);
-  }
-  const foreign = FOREIGN[ext];
-  if (foreign) throw new UserError(`${option} ${path}: that names ${foreign}, but ${option} writes ${spec.label}; give a name ending in ${spec.extensions[0]}`, 2);
+  const foreign = other !== undefined && other !== kind ? KINDS[other].label : FOREIGN[ext];
+  if (foreign) throw new UserError(`${option} ${path}: a "${ext}" name is for ${foreign}, but ${option} writes ${spec.label}; give a name ending in ${spec.extensions[0]}`, 2);
   const target = statOrUndefined(path);
   for (const input of inputs) {
     const given = statOrUndefined(input);
