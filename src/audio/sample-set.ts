@@ -2,7 +2,7 @@ import { existsSync, statSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import { z } from 'zod';
 import { alterationOf, chromaOf, formatPitchClass, formatSpelledPitch, keyOf, letterOf, onKey, parseSpelledPitch, rangeClasses, type FifthsRange, type PitchClass } from '../pitch/index.js';
-import { formatReference, frequency, type Reference, type Tuning } from '../tuning/index.js';
+import { formatReference, frequency, parseReference, type Reference, type Tuning } from '../tuning/index.js';
 import { jsonPath } from '../presets/problems.js';
 import { UserError } from '../util/errors.js';
 import { isWithin, listFolder, readInputFile, READ_LIMITS, readTextFile, writeFolder } from '../util/files.js';
@@ -105,7 +105,14 @@ export const manifestSchema = z.object({
   builtBy: z.literal('diesis').optional(),
   tuningId: z.string().min(1).optional(),
   tuning: z.string(),
-  reference: z.string(),
+  reference: z.string().refine((text) => {
+    try {
+      parseReference(text);
+      return true;
+    } catch {
+      return false;
+    }
+  }, 'must be a reference pitch such as A4=415'),
   sampleRate: z.number().int().positive(),
   /** Spelling class → MIDI channel 1…16. */
   layout: z.array(z.object({ spelling: z.string(), fifths: z.number().int(), channel: z.number().int().min(1).max(16) })).min(1).max(16),
