@@ -165,6 +165,19 @@ describe('bounded reading', () => {
     expect(readdirSync(dir)).toEqual(['bad.mid']);
   });
 
+  it('renders a file with a chunk of unknown type between its tracks, as SMF 1.0 asks (skip it)', async () => {
+    const dir = tempDir('diesis-alien-');
+    const movement = readFileSync(MOVEMENT);
+    // SMF 1.0: after the 14-byte header come the chunks; insert an 8 + 6 byte chunk "XYZW" before the first track.
+    const alien = Buffer.concat([movement.subarray(0, 14), Buffer.from([0x58, 0x59, 0x5a, 0x57, 0, 0, 0, 6, 1, 2, 3, 4, 5, 6]), movement.subarray(14)]);
+    writeFileSync(join(dir, 'alien.mid'), alien);
+    const plain = await runCli('render', MOVEMENT, '-o', join(dir, 'plain-out.mid'));
+    const skipped = await runCli('render', join(dir, 'alien.mid'), '-o', join(dir, 'alien-out.mid'));
+    expect(skipped.code).toBe(0);
+    expect(readFileSync(join(dir, 'alien-out.mid')).equals(readFileSync(join(dir, 'plain-out.mid')))).toBe(true);
+    expect(skipped.stdout.split('\n').slice(1)).toEqual(plain.stdout.split('\n').slice(1));
+  });
+
   it.runIf(existsSync('/dev/zero'))('refuses /dev/zero as the input and as the tuning, promptly', async () => {
     const dir = tempDir('diesis-zero-');
     const asInput = await runCli('render', '/dev/zero', '-o', join(dir, 'out.mid'));
