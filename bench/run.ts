@@ -5,6 +5,7 @@ import { benchAdaptive } from './adaptive.js';
 import { benchAudio } from './audio.js';
 import { benchFuzz } from './fuzz.js';
 import { benchLatency, benchSoak } from './live.js';
+import { benchRender } from './render.js';
 import { benchRouter } from './router.js';
 import { benchSpelling } from './spelling.js';
 import { benchTuning } from './tuning.js';
@@ -18,6 +19,7 @@ if (!soakOnly) {
   benchSpelling();
   benchAdaptive();
   benchAudio();
+  await benchRender();
   await benchLatency();
   await benchFuzz();
 }

@@ -1,8 +1,11 @@
-import { existsSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
-import { basename, join } from 'node:path';
+import { existsSync, statSync } from 'node:fs';
+import { basename, dirname, join, resolve } from 'node:path';
+import { z } from 'zod';
 import { alterationOf, chromaOf, formatPitchClass, formatSpelledPitch, keyOf, letterOf, onKey, parseSpelledPitch, rangeClasses, type FifthsRange, type PitchClass } from '../pitch/index.js';
-import { formatReference, frequency, type Reference, type Tuning } from '../tuning/index.js';
+import { formatReference, frequency, parseReference, type Reference, type Tuning } from '../tuning/index.js';
+import { jsonPath } from '../presets/problems.js';
 import { UserError } from '../util/errors.js';
+import { isWithin, listFolder, readInputFile, READ_LIMITS, readTextFile, writeFolder } from '../util/files.js';
 import { resample } from './resample.js';
 import { releaseEnvelope, renderThroughSynth } from './synth-render.js';
 import { readWav, writeWav, type Audio } from './wav.js';
@@ -23,21 +26,17 @@ export interface SourceSample {
  * in 12-ET at A4 = 440 Hz unless the map gives its frequency.
  */
 export function readSourceFolder(dir: string): SourceSample[] {
-  if (!existsSync(dir)) throw new UserError(`${dir}: no such folder`);
-  const mapFile = join(dir, 'map.json');
-  let map: Record<string, { key?: number; hz?: number }> = {};
-  if (existsSync(mapFile)) {
-    try {
-      map = JSON.parse(readFileSync(mapFile, 'utf8')) as typeof map;
-    } catch (error) {
-      throw new UserError(`${mapFile}: not valid JSON (${error instanceof Error ? error.message : String(error)})`);
-    }
+  const names = listFolder(dir);
+  let map: z.infer<typeof sourceMapSchema> = {};
+  if (names.includes('map.json')) {
+    const mapFile = join(dir, 'map.json');
+    map = parseJsonFile(mapFile, sourceMapSchema, 'a sample map ({ "file.wav": { "key": 60, "hz": 261.4 } })');
   }
-  const files = readdirSync(dir).filter((f) => /\.wav$/iu.test(f)).sort();
+  const files = names.filter((f) => /\.wav$/iu.test(f));
   if (files.length === 0) throw new UserError(`${dir}: no .wav files`);
   return files.map((f) => {
     const path = join(dir, f);
-    const audio = readWav(readFileSync(path), path);
+    const audio = readWav(readInputFile(path, READ_LIMITS.wav), path);
     const entry = map[f];
     const rootKey = entry?.key ?? keyFromName(f) ?? audio.rootKey;
     if (rootKey === undefined || rootKey < 0 || rootKey > 127) {
@@ -45,6 +44,25 @@ export function readSourceFolder(dir: string): SourceSample[] {
     }
     return { file: path, audio, rootKey, hz: entry?.hz ?? 440 * 2 ** ((rootKey - 69) / 12) };
   });
+}
+
+const sourceMapSchema = z.record(z.string(), z.strictObject({ key: z.number().int().min(0).max(127).optional(), hz: z.number().positive().max(20_000).optional() }));
+
+/** Reads a JSON file diesis or the player wrote and validates it; a problem is one line with its place. */
+function parseJsonFile<T>(file: string, schema: z.ZodType<T>, what: string): T {
+  let json: unknown;
+  try {
+    json = JSON.parse(readTextFile(file));
+  } catch (error) {
+    if (error instanceof UserError) throw error;
+    throw new UserError(`${file}: not valid JSON (${error instanceof Error ? error.message : String(error)})`);
+  }
+  const parsed = schema.safeParse(json);
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    throw new UserError(`${file}: not ${what}: ${issue ? `${jsonPath(issue.path)}: ${issue.message}` : 'invalid'}`);
+  }
+  return parsed.data;
 }
 
 /** The root key in a file name: a note with octave, or a key number. */
@@ -67,6 +85,8 @@ export interface SampleSetRequest {
   readonly sources: readonly SourceSample[];
   readonly tuning: Tuning;
   readonly tuningName: string;
+  /** How the tuning is named on the command line (a built-in id, or a file's full path), recorded so the set plays in it by default. */
+  readonly tuningId?: string | undefined;
   readonly reference: Reference;
   /** The spellings to build, a stretch of the line of fifths (at most 16: one channel each). */
   readonly range: FifthsRange;
@@ -76,24 +96,44 @@ export interface SampleSetRequest {
   readonly maxShift: number;
 }
 
-export interface ManifestFile {
-  readonly file: string;
-  readonly spelling: string;
-  readonly key: number;
-  readonly channel: number;
-  readonly hz: number;
-  readonly source: string;
-  readonly shiftCents: number;
-}
+/** A plain file name inside the set's folder (no folder part), so a manifest cannot point elsewhere. */
+const fileName = z.string().min(1).refine((n) => !/[/\\]/u.test(n) && n !== '.' && n !== '..', 'must be a plain file name');
 
-export interface Manifest {
-  readonly tuning: string;
-  readonly reference: string;
-  readonly sampleRate: number;
+/** The manifest a set's folder holds (manifest.json), validated whenever it is read. */
+export const manifestSchema = z.object({
+  /** "diesis": the set was built by diesis, so diesis may replace it. */
+  builtBy: z.literal('diesis').optional(),
+  tuningId: z.string().min(1).optional(),
+  tuning: z.string(),
+  reference: z.string().refine((text) => {
+    try {
+      parseReference(text);
+      return true;
+    } catch {
+      return false;
+    }
+  }, 'must be a reference pitch such as A4=415'),
+  sampleRate: z.number().int().positive(),
   /** Spelling class → MIDI channel 1…16. */
-  readonly layout: ReadonlyArray<{ readonly spelling: string; readonly fifths: number; readonly channel: number }>;
-  readonly files: readonly ManifestFile[];
-}
+  layout: z.array(z.object({ spelling: z.string(), fifths: z.number().int(), channel: z.number().int().min(1).max(16) })).min(1).max(16),
+  files: z.array(
+    z.object({
+      file: fileName,
+      spelling: z.string(),
+      key: z.number().int().min(0).max(127),
+      channel: z.number().int().min(1).max(16),
+      hz: z.number().positive(),
+      source: z.string(),
+      shiftCents: z.number(),
+    }),
+  ),
+});
+
+export type Manifest = z.infer<typeof manifestSchema>;
+export type ManifestFile = Manifest['files'][number];
+
+export const MANIFEST = 'manifest.json';
+export const SFZ = 'diesis.sfz';
 
 /** A file name without `#`: G♯4 → Gs4, B♭3 → Bb3, F𝄪2 → Fss2. */
 export function fileStem(pc: PitchClass, octave: number): string {
@@ -126,10 +166,9 @@ export function buildSampleSet(request: SampleSetRequest, outDir: string, onProg
     }
     return { ...job, pitch, hz, source, shift };
   });
-  const temporary = `${outDir}.tmp-${process.pid}`;
-  rmSync(temporary, { recursive: true, force: true });
-  mkdirSync(temporary, { recursive: true });
-  try {
+  const replacing = setTarget(outDir, request.sources.map((source) => dirname(source.file)));
+  let manifest: Manifest | undefined;
+  writeFolder(outDir, replacing, (put) => {
     const files: ManifestFile[] = [];
     plans.forEach((plan, i) => {
       const ratio = plan.hz / plan.source.hz;
@@ -137,26 +176,69 @@ export function buildSampleSet(request: SampleSetRequest, outDir: string, onProg
       const loop = audio.loop && { start: Math.round(audio.loop.start / ratio), end: Math.round(audio.loop.end / ratio) };
       const out: Audio = { sampleRate: audio.sampleRate, channels: audio.channels.map((c) => resample(c, ratio)), loop, rootKey: plan.key };
       const name = `${fileStem(plan.pitch, plan.pitch.octave)}.wav`;
-      writeFileSync(join(temporary, name), writeWav(out, 24));
+      put(name, writeWav(out, 24));
       files.push({ file: name, spelling: formatSpelledPitch(plan.pitch), key: plan.key, channel: plan.channel + 1, hz: plan.hz, source: basename(plan.source.file), shiftCents: plan.shift * 100 });
       onProgress?.((i + 1) / plans.length);
     });
-    const manifest: Manifest = {
+    manifest = {
+      builtBy: 'diesis',
+      ...(request.tuningId === undefined ? {} : { tuningId: request.tuningId }),
       tuning: request.tuningName,
       reference: formatReference(request.reference),
       sampleRate: [...rates][0] ?? 44_100,
       layout: classes.map((pc, channel) => ({ spelling: formatPitchClass(pc), fifths: pc.fifths, channel: channel + 1 })),
       files,
     };
-    writeFileSync(join(temporary, 'manifest.json'), JSON.stringify(manifest, null, 2) + '\n');
-    writeFileSync(join(temporary, 'diesis.sfz'), sfzText(manifest, plans.map((p) => p.source.audio.loop !== undefined)));
-    rmSync(outDir, { recursive: true, force: true });
-    renameSync(temporary, outDir);
-    return manifest;
+    put(MANIFEST, JSON.stringify(manifest, null, 2) + '\n');
+    put(SFZ, sfzText(manifest, plans.map((p) => p.source.audio.loop !== undefined)));
+  });
+  if (!manifest) throw new Error('the sample set was not written');
+  return manifest;
+}
+
+/**
+ * Decides whether a set may be written to `outDir`, built from the folders `sourceDirs`, and
+ * returns the files of an earlier set there that it replaces. diesis never writes into, over or
+ * around the player's samples, and replaces an existing folder only when it is empty or holds a
+ * set diesis built (its manifest says so); then exactly that set's files are replaced.
+ */
+export function setTarget(outDir: string, sourceDirs: readonly string[]): string[] {
+  for (const source of new Set(sourceDirs.map((d) => resolve(d)))) {
+    if (isWithin(outDir, source) && isWithin(source, outDir)) throw new UserError(`--to ${outDir} is the --from folder: diesis never writes over your samples; give a new folder`, 2);
+    if (isWithin(outDir, source)) throw new UserError(`--to ${outDir} is inside the --from folder ${source}: the set would mix with your samples; give a folder outside it`, 2);
+    if (isWithin(source, outDir)) throw new UserError(`--to ${outDir} contains the --from folder ${source}: replacing it would touch your samples; give a new folder`, 2);
+  }
+  let names: string[];
+  try {
+    if (existsSync(outDir) && !statSync(outDir).isDirectory()) throw new UserError(`--to ${outDir} is a file, not a folder; give a folder for the set`);
+    names = listFolder(outDir);
   } catch (error) {
-    rmSync(temporary, { recursive: true, force: true });
+    if (error instanceof UserError && / no such folder$/u.test(error.message)) {
+      const parent = dirname(resolve(outDir));
+      listFolder(parent); // the folder it goes in must exist (one clear line if not)
+      return [];
+    }
     throw error;
   }
+  if (names.length === 0) return [];
+  if (!names.includes(MANIFEST)) throw new UserError(`--to ${outDir} already holds ${describeNames(names)} and is not a sample set diesis built; give a new or empty folder`);
+  let old: Manifest;
+  try {
+    old = readManifest(outDir);
+  } catch (error) {
+    throw new UserError(`--to ${outDir} holds a manifest.json diesis cannot read as its own (${error instanceof Error ? error.message : String(error)}); give a new or empty folder`);
+  }
+  if (old.builtBy !== 'diesis') throw new UserError(`--to ${outDir} holds a manifest.json that does not say diesis built it (and ${describeNames(names)}); give a new or empty folder`);
+  return [...new Set([MANIFEST, SFZ, ...old.files.map((f) => f.file)])];
+}
+
+function describeNames(names: readonly string[]): string {
+  const shown = names.slice(0, 3).join(', ');
+  return `${names.length} ${names.length === 1 ? 'entry' : 'entries'} (${shown}${names.length > 3 ? ', …' : ''})`;
+}
+
+function readManifest(dir: string): Manifest {
+  return parseJsonFile(join(dir, MANIFEST), manifestSchema, 'a sample-set manifest');
 }
 
 function isSpellingOf(pc: PitchClass, key: number): boolean {
@@ -191,14 +273,9 @@ export interface LoadedSampleSet {
 }
 
 export function loadSampleSet(dir: string): LoadedSampleSet {
-  const file = join(dir, 'manifest.json');
-  if (!existsSync(file)) throw new UserError(`${dir}: not a sample set (no manifest.json; make one with "diesis samples")`);
-  let manifest: Manifest;
-  try {
-    manifest = JSON.parse(readFileSync(file, 'utf8')) as Manifest;
-  } catch (error) {
-    throw new UserError(`${file}: not valid JSON (${error instanceof Error ? error.message : String(error)})`);
-  }
+  const names = listFolder(dir);
+  if (!names.includes(MANIFEST)) throw new UserError(`${dir}: not a sample set (no manifest.json; make one with "diesis samples")`);
+  const manifest = readManifest(dir);
   const layout = new Map(manifest.layout.map((l) => [l.fifths, l.channel - 1]));
   const byKey = new Map(manifest.files.map((f) => [`${f.channel - 1}:${f.key}`, f.file]));
   const cache = new Map<string, Audio>();
@@ -212,7 +289,7 @@ export function loadSampleSet(dir: string): LoadedSampleSet {
       if (!name) return undefined;
       let audio = cache.get(id);
       if (!audio) {
-        audio = readWav(readFileSync(join(dir, name)), join(dir, name));
+        audio = readWav(readInputFile(join(dir, name), READ_LIMITS.wav), join(dir, name));
         cache.set(id, audio);
       }
       return audio;
@@ -254,4 +331,28 @@ export function playSampleSet(messages: ReadonlyArray<{ time: number; data: read
     progress,
   );
   return { sampleRate, channels: [out] };
+}
+
+/**
+ * Checks that a set is played as it was built: in the samples mode, and in the tuning and at the
+ * reference it was built for (each sample's recorded frequency against the one the engine would
+ * give its spelling now). A mismatch is one line saying what the set was built for.
+ */
+export function checkSetPlays(set: LoadedSampleSet, use: { readonly tuning: Tuning; readonly tuningName: string; readonly reference: Reference; readonly mode?: string | undefined }): void {
+  const { manifest } = set;
+  const builtFor = `${manifest.tuning} at ${manifest.reference} Hz`;
+  if (use.mode !== undefined && use.mode !== 'samples') {
+    throw new UserError(`--sample-set ${set.dir} is played by --mode samples (it was built for ${builtFor}); drop --mode ${use.mode}`, 2);
+  }
+  let worst: { cents: number; spelling: string } | undefined;
+  for (const f of manifest.files) {
+    const now = frequency(use.tuning, use.reference, parseSpelledPitch(f.spelling));
+    const cents = 1200 * Math.log2(now / f.hz);
+    if (Math.abs(cents) > 0.01 && (!worst || Math.abs(cents) > Math.abs(worst.cents))) worst = { cents, spelling: f.spelling };
+  }
+  if (!worst) return;
+  const hint = manifest.tuningId ? `play it with -t ${manifest.tuningId} --ref ${manifest.reference}` : `play it in ${builtFor}`;
+  throw new UserError(
+    `--sample-set ${set.dir} was built for ${builtFor}, not ${use.tuningName} at ${formatReference(use.reference)} Hz (its ${worst.spelling} would be ${Math.abs(worst.cents).toFixed(2)} cents off): ${hint}, or build a set for this tuning with "diesis samples"`,
+  );
 }

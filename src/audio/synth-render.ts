@@ -1,4 +1,15 @@
 import { SynthModel, type ModelVoice } from '../synth/reference-synth.js';
+import { UserError } from '../util/errors.js';
+
+/** The longest audio rendered (4 hours: 2.5 GB of samples at 44.1 kHz would not fit in memory much beyond). */
+export const MAX_AUDIO_SECONDS = 4 * 3600;
+
+function describeDuration(seconds: number): string {
+  return seconds >= 86_400 ? `${(seconds / 86_400).toFixed(0)} days` : `${(seconds / 3600).toFixed(1)} hours`;
+}
+
+/** Frames rendered between two progress reports at most (about 0.1 s at 44.1 kHz). */
+const BLOCK_FRAMES = 4096;
 
 /** Sounds one voice: adds its samples for frames `from` to `to` at `hz`; `ended` once its key and pedal are up. */
 export interface VoicePlayer {
@@ -22,22 +33,33 @@ export function renderThroughSynth(
   const synth = new SynthModel(a4, releaseSeconds * 2000);
   const sorted = [...messages].sort((a, b) => a.time - b.time);
   const lastMs = sorted[sorted.length - 1]?.time ?? 0;
-  const out = new Float32Array(Math.ceil((lastMs / 1000 + 2 * releaseSeconds + 0.5) * sampleRate));
+  const seconds = lastMs / 1000 + 2 * releaseSeconds + 0.5;
+  if (!(seconds <= MAX_AUDIO_SECONDS)) {
+    throw new UserError(`the audio would last ${describeDuration(seconds)}; an audio preview is at most ${MAX_AUDIO_SECONDS / 3600} hours (is there a very long silence in the file?)`);
+  }
+  const out = new Float32Array(Math.ceil(seconds * sampleRate));
   const players = new Map<ModelVoice, VoicePlayer>();
   let cursor = 0;
+  // Progress follows the frames rendered (the work), in blocks, so the bar moves steadily even
+  // across a long stretch between two messages.
+  let reported = -Infinity;
   const renderUntil = (frame: number): void => {
     const to = Math.min(frame, out.length);
-    for (const [voice, player] of players) player.play(out, cursor, to, synth.frequency(voice), voice.state === 'tail');
-    cursor = Math.max(cursor, to);
+    while (cursor < to) {
+      const end = Math.min(to, cursor + BLOCK_FRAMES);
+      for (const [voice, player] of players) player.play(out, cursor, end, synth.frequency(voice), voice.state === 'tail');
+      cursor = end;
+      if (progress && cursor / out.length - reported >= 0.005) progress((reported = cursor / out.length));
+    }
     for (const voice of [...players.keys()]) if (!synth.voices.includes(voice)) players.delete(voice);
   };
-  sorted.forEach((m, i) => {
+  progress?.((reported = 0));
+  for (const m of sorted) {
     renderUntil(Math.round((m.time / 1000) * sampleRate));
     const voice = synth.receive(m.time, m.data);
     const player = voice && start(voice);
     if (voice && player) players.set(voice, player);
-    if (i % 2000 === 0) progress?.(i / sorted.length);
-  });
+  }
   for (let t = lastMs; cursor < out.length; t += 50) {
     synth.advance(t);
     renderUntil(cursor + Math.round(0.05 * sampleRate));

@@ -46,6 +46,9 @@ export function readWav(bytes: Uint8Array, file: string): Audio {
   if (channels < 1 || rate < 1) throw new UserError(`${file}: ${channels} channels at ${rate} Hz is not usable audio`);
   const frameBytes = (bits / 8) * channels;
   const frames = Math.floor(data.size / frameBytes);
+  if (loop && (loop.end <= loop.start || loop.end > frames)) {
+    throw new UserError(`${file}: its smpl loop (frames ${loop.start} to ${loop.end - 1}) does not lie within its ${frames} frames`);
+  }
   const out = Array.from({ length: channels }, () => new Float32Array(frames));
   for (let f = 0; f < frames; f++) {
     for (let c = 0; c < channels; c++) {

@@ -2,14 +2,14 @@ import type { Command } from 'commander';
 import { buildChart, chartJson } from '../chart/chart.js';
 import { chartCsv, chartText } from '../chart/chart-text.js';
 import { parseFifthsRange } from '../pitch/index.js';
-import { loadTuningPreset } from '../presets/tuning-presets.js';
+import { loadTuningPreset, type TuningPreset } from '../presets/tuning-presets.js';
 import { A440, DEFAULT_WOLF_LIMITS, frequency, isAdaptive, parseReference } from '../tuning/index.js';
 import { describeAdaptive } from '../tuning/adaptive/describe.js';
 import { dyadStartTimes, renderDyads } from '../audio/preview.js';
 import { chartSvg } from '../chart/chart-svg.js';
 import { formatSpelledPitch } from '../pitch/index.js';
 import { writeWav } from '../audio/wav.js';
-import { writeOutputFile } from '../util/files.js';
+import { runWithOutputs } from '../util/files.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from '../util/io.js';
 import { integerOption, numberOption } from './options.js';
@@ -46,48 +46,33 @@ export function registerChart(program: Command, io: CommandIo): void {
     .option('--listen <file.wav>', 'also write the chart’s fifths and thirds as sustained dyads, to hear the beats and the wolves (prints a cue list)')
     .option('--svg <file.svg>', 'also draw the chart as a picture: the line of fifths, cents from 12-ET, fifths and thirds from pure, gaps and wolves')
     .action((tuningArg: string, options: ChartOptions) => {
+      if (options.json && options.csv !== undefined) throw new UserError('--json and --csv each print the whole chart: give one of them', 2);
       const preset = loadTuningPreset(tuningArg);
-      const reference = options.ref !== undefined ? parseReference(options.ref, '--ref') : (preset.reference ?? A440);
-      const range = parseFifthsRange(`${options.from}..${options.to}`, '--from/--to');
-      const chart = buildChart({
-        tuning: preset.tuning,
-        reference,
-        range,
-        octave: options.octave,
-        wolfLimits: { fifth: options.wolfFifth, third: options.wolfThird },
+      let cues = '';
+      const text = runWithOutputs([preset.file], (outputs) => {
+        if (options.listen) outputs.claim('--listen', options.listen, 'wav');
+        if (options.svg) outputs.claim('--svg', options.svg, 'svg');
+        const reference = options.ref !== undefined ? parseReference(options.ref, '--ref') : (preset.reference ?? A440);
+        const range = parseFifthsRange(`${options.from}..${options.to}`, '--from/--to');
+        const chart = buildChart({
+          tuning: preset.tuning,
+          reference,
+          range,
+          octave: options.octave,
+          wolfLimits: { fifth: options.wolfFifth, third: options.wolfThird },
+        });
+        const printed = chartOutput(chart, preset, options, io);
+        if (options.listen) {
+          const pairs = chart.intervals.map((i) => [frequency(preset.tuning, reference, i.lower), frequency(preset.tuning, reference, i.upper)] as const);
+          outputs.stage(options.listen, writeWav(renderDyads(pairs, 44_100), 16));
+          cues = `\n${options.listen}: ${chart.intervals.length} dyads\n${cueList(chart.intervals, options.ascii === true)}`;
+        }
+        if (options.svg) outputs.stage(options.svg, new TextEncoder().encode(chartSvg(chart, { title: `${preset.name} (${preset.kind})`, subtitle: preset.source })));
+        return printed;
       });
-      if (options.listen) {
-        const pairs = chart.intervals.map((i) => [frequency(preset.tuning, reference, i.lower), frequency(preset.tuning, reference, i.upper)] as const);
-        writeOutputFile(options.listen, writeWav(renderDyads(pairs, 44_100), 16));
-      }
-      if (options.svg) {
-        writeOutputFile(options.svg, new TextEncoder().encode(chartSvg(chart, { title: `${preset.name} (${preset.kind})`, subtitle: preset.source })));
-      }
-      if (options.json) {
-        const meta = { id: preset.id, name: preset.name, kind: preset.kind, source: preset.source };
-        const json = chartJson(chart, meta) as Record<string, unknown>;
-        const adaptive = isAdaptive(preset.tuning) ? { adaptive: { explanation: describeAdaptive(preset.tuning.settings).join(' '), settings: preset.tuning.settings } } : {};
-        io.stdout.write(JSON.stringify({ ...json, ...adaptive }, null, 2) + '\n');
-      } else if (options.csv !== undefined) {
-        const table = options.csv === true ? 'notes' : options.csv;
-        if (table !== 'notes' && table !== 'intervals') throw new UserError(`--csv "${table}" must be "notes" or "intervals"`, 2);
-        io.stdout.write(chartCsv(chart, table));
-      } else {
-        const ascii = options.ascii === true;
-        io.stdout.write(
-          chartText(chart, {
-            ascii,
-            style: makeStyle(wantsColour(io.stdout)),
-            title: `${preset.name} (${preset.kind})`,
-            subtitle: isAdaptive(preset.tuning) ? [preset.source, '', ...describeAdaptive(preset.tuning.settings)].join('\n') : preset.source,
-          }),
-        );
-      }
-      if (options.listen) {
-        // The cue list goes with the chart on stdout, or to stderr when stdout carries JSON or CSV.
-        const cues = cueList(chart.intervals, options.ascii === true);
-        (options.json || options.csv !== undefined ? io.stderr : io.stdout).write(`\n${options.listen}: ${chart.intervals.length} dyads\n${cues}`);
-      }
+      io.stdout.write(text);
+      // The cue list goes with the chart on stdout, or to stderr when stdout carries JSON or CSV.
+      if (cues) (options.json || options.csv !== undefined ? io.stderr : io.stdout).write(cues);
     });
 }
 
@@ -103,4 +88,25 @@ export function cueList(intervals: ReturnType<typeof buildChart>['intervals'], a
       return `${time}  ${name.padEnd(9)} ${i.quality}${i.wolf ? '  wolf' : ''}\n`;
     })
     .join('');
+}
+
+/** The chart as the options ask: JSON, CSV or tables. */
+function chartOutput(chart: ReturnType<typeof buildChart>, preset: TuningPreset, options: ChartOptions, io: CommandIo): string {
+  if (options.json) {
+    const meta = { id: preset.id, name: preset.name, kind: preset.kind, source: preset.source };
+    const json = chartJson(chart, meta) as Record<string, unknown>;
+    const adaptive = isAdaptive(preset.tuning) ? { adaptive: { explanation: describeAdaptive(preset.tuning.settings).join(' '), settings: preset.tuning.settings } } : {};
+    return JSON.stringify({ ...json, ...adaptive }, null, 2) + '\n';
+  }
+  if (options.csv !== undefined) {
+    const table = options.csv === true ? 'notes' : options.csv;
+    if (table !== 'notes' && table !== 'intervals') throw new UserError(`--csv "${table}" must be "notes" or "intervals"`, 2);
+    return chartCsv(chart, table);
+  }
+  return chartText(chart, {
+    ascii: options.ascii === true,
+    style: makeStyle(wantsColour(io.stdout)),
+    title: `${preset.name} (${preset.kind})`,
+    subtitle: isAdaptive(preset.tuning) ? [preset.source, '', ...describeAdaptive(preset.tuning.settings)].join('\n') : preset.source,
+  });
 }

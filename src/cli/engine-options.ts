@@ -1,5 +1,5 @@
 import { Option, type Command } from 'commander';
-import { loadSampleSet, type LoadedSampleSet } from '../audio/sample-set.js';
+import { checkSetPlays, loadSampleSet, type LoadedSampleSet } from '../audio/sample-set.js';
 import { formatRange, parseWindow } from '../pitch/index.js';
 import { loadSetupFile, type SetupFile } from '../presets/setup-file.js';
 import { loadTuningPreset, type TuningPreset } from '../presets/tuning-presets.js';
@@ -102,9 +102,9 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const setup = cli.setup === undefined ? undefined : loadSetupFile(cli.setup);
   const json = setup?.json;
   const sampleSet = cli.sampleSet === undefined ? undefined : loadSampleSet(cli.sampleSet);
-  const preset = cli.tuning !== undefined ? loadTuningPreset(cli.tuning) : (setup?.tuning ?? loadTuningPreset('meantone-1-4'));
+  // A sample set plays in its own tuning and reference unless told otherwise (and then refuses a mismatch).
+  const preset = cli.tuning !== undefined ? loadTuningPreset(cli.tuning) : (setup?.tuning ?? loadTuningPreset(sampleSet?.manifest.tuningId ?? 'meantone-1-4'));
   const mode: OutputMode = sampleSet ? 'samples' : (cli.mode ?? json?.output?.mode ?? 'bend');
-  if (sampleSet && cli.mode !== undefined && cli.mode !== 'samples') throw new UserError(`--sample-set plays through --mode samples, not --mode ${cli.mode}`, 2);
   refuseForeignSettings(mode, {
     layout: cli.layout,
     bendRange: cli.bendRange,
@@ -134,7 +134,10 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const octaveForm = cli.octaveForm ?? (json?.output?.octaveForm === undefined ? undefined : String(json.output.octaveForm));
   const options: EngineOptionsInput = {
     tuning: preset.tuning,
-    reference: cli.ref !== undefined ? parseReference(cli.ref, '--ref') : (setup?.reference ?? preset.reference ?? A440),
+    reference:
+      cli.ref !== undefined
+        ? parseReference(cli.ref, '--ref')
+        : (setup?.reference ?? (sampleSet?.manifest.reference === undefined ? undefined : parseReference(sampleSet.manifest.reference, `${cli.sampleSet}: reference`)) ?? preset.reference ?? A440),
     mode,
     layout: cli.layout ?? json?.output?.layout,
     channels,
@@ -151,6 +154,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     controls: new ControlMap(setup?.bindings ?? [], speller),
     gather: cli.gather ?? json?.spelling?.gatherMs,
   };
+  if (sampleSet) checkSetPlays(sampleSet, { tuning: preset.tuning, tuningName: preset.name, reference: options.reference, mode: cli.mode ?? json?.output?.mode });
   const spellingLabel =
     strategy === 'fixed' ? `fixed in ${formatRange(speller.currentWindow())}` : strategy === 'key' ? `the key of ${formatKey(key!)}` : `${strategy}, starting in ${formatKey(key ?? C_MAJOR)}`;
   return { spellingLabel, preset, setup, strategy, speller, options, sampleSet };

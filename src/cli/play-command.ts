@@ -6,6 +6,7 @@ import type { SessionOptions } from '../live/session.js';
 import { formatRange } from '../pitch/index.js';
 import { resolveEngineOptions } from '../router/setup.js';
 import { UserError } from '../util/errors.js';
+import { checkSessionOutputs, engineInputFiles } from './command-files.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import type { CommandIo } from '../util/io.js';
 import { describeSetup } from './render-command.js';
@@ -32,7 +33,7 @@ export function registerPlay(program: Command, io: CommandIo): void {
     .option('--out <port>', 'output port: name (case-insensitive substring) or index')
     .option('--wait', 'wait for missing ports instead of failing')
     .option('--quiet', 'no display')
-    .option('--log <file>', 'append every decision to a JSON Lines file')
+    .option('--log <file.jsonl>', 'append every decision to a JSON Lines file')
     .option('--record <file.mid>', 'write the take (input and output tracks) as a Standard MIDI File at the end')
     .option('--ascii', 'write # and b instead of ♯ and ♭')
     .option('--stop-after <seconds>', 'stop by itself after this long (for scripted runs)', numberOption('--stop-after', 0, 86_400))
@@ -42,6 +43,8 @@ export function registerPlay(program: Command, io: CommandIo): void {
     const resolved = resolveEngineCli(cli);
     const inputs = cli.in ?? [];
     if (inputs.length === 0 || !cli.out) throw new UserError('play needs --in PORT and --out PORT (run "diesis ports" to list them)', 2);
+    const inputFiles = engineInputFiles(resolved);
+    checkSessionOutputs(cli.log, cli.record, inputFiles);
     const { engine, title } = sessionTitle(resolved);
     const code = await runUntilStopped(
       {
@@ -55,6 +58,7 @@ export function registerPlay(program: Command, io: CommandIo): void {
         quiet: cli.quiet,
         logFile: cli.log,
         recordFile: cli.record,
+        inputFiles,
         ascii: cli.ascii,
         page: stagePageRequest(cli, { pieceTitle: cli.setup ? basename(cli.setup, extname(cli.setup)) : 'diesis', tuningId: resolved.preset.id, tuningName: resolved.preset.name }),
       },

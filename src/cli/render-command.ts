@@ -3,7 +3,6 @@ import { renderPreview, type VoiceKind } from '../audio/preview.js';
 import { playSampleSet } from '../audio/sample-set.js';
 import { writeWav } from '../audio/wav.js';
 import { progressBar } from './progress.js';
-import { resolve } from 'node:path';
 import { renderEvents, type RenderSummary } from '../render/render-midi.js';
 import { readMidiFile, writeMidiFile } from '../render/smf.js';
 import { createEngine, OUTPUT_MODES, type EngineOptions } from '../router/setup.js';
@@ -11,7 +10,8 @@ import { formatChannels } from '../text/channels.js';
 import { formatReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
-import { readInputFile, writeOutputFile } from '../util/files.js';
+import { readInputFile, runWithOutputs } from '../util/files.js';
+import { engineInputFiles } from './command-files.js';
 import type { CommandIo } from '../util/io.js';
 
 export function summaryText(summary: RenderSummary, header: string): string {
@@ -57,21 +57,31 @@ export function registerRender(program: Command, io: CommandIo): void {
     .addOption(new Option('--voice <voice>', 'the built-in voice of the preview (with --sample-set the preview plays the set)').choices(['pluck', 'organ']).default('pluck'));
   addEngineOptions(command).action((input: string, cli: RenderOptions) => {
     if (!cli.output && !cli.wav) throw new UserError('render needs -o OUT.mid or --wav OUT.wav, the file to write', 2);
-    for (const out of [cli.output, cli.wav]) if (out && resolve(out) === resolve(input)) throw new UserError(`${out}: refusing to overwrite the input file`, 2);
-    const { preset, options, sampleSet, spellingLabel } = resolveEngineCli(cli);
-    const content = readMidiFile(readInputFile(input), input);
+    const resolved = resolveEngineCli(cli);
+    const { preset, options, sampleSet, spellingLabel } = resolved;
     const engine = createEngine({ ...options, gather: options.gather ?? 'same-time' }); // in a file, equal onsets are a chord
-    let times: number[] = [];
-    const { messages, summary } = renderEvents(content, engine, undefined, (ms) => (times = ms));
-    if (cli.output) writeOutputFile(cli.output, writeMidiFile(content.division, content.meta, [messages]));
-    if (cli.wav) {
-      const bar = progressBar(io.stderr, 'rendering audio');
-      const timed = messages.map((m, i) => ({ time: times[i] ?? 0, data: m.data }));
-      const rate = Number(cli.rate);
-      const audio = sampleSet ? playSampleSet(timed, sampleSet, rate, bar.update) : renderPreview(timed, { sampleRate: rate, voice: cli.voice, synthA4: engine.options.synthA4, progress: bar.update });
-      bar.done();
-      writeOutputFile(cli.wav, writeWav(audio, cli.bits === '24' ? 24 : 16));
-    }
+    // Every output is checked before the work and written only when all of it has succeeded.
+    const summary = runWithOutputs([input, ...engineInputFiles(resolved)], (outputs) => {
+      if (cli.output) outputs.claim('-o', cli.output, 'midi');
+      if (cli.wav) outputs.claim('--wav', cli.wav, 'wav');
+      const content = readMidiFile(readInputFile(input), input);
+      let times: number[] = [];
+      const rendered = renderEvents(content, engine, undefined, (ms) => (times = ms));
+      const { messages } = rendered;
+      if (cli.output) outputs.stage(cli.output, writeMidiFile(content.division, content.meta, [messages]));
+      if (cli.wav) {
+        const bar = progressBar(io.stderr, 'rendering audio');
+        const timed = messages.map((m, i) => ({ time: times[i] ?? 0, data: m.data }));
+        const rate = Number(cli.rate);
+        try {
+          const audio = sampleSet ? playSampleSet(timed, sampleSet, rate, bar.update) : renderPreview(timed, { sampleRate: rate, voice: cli.voice, synthA4: engine.options.synthA4, progress: bar.update });
+          outputs.stage(cli.wav, writeWav(audio, cli.bits === '24' ? 24 : 16));
+        } finally {
+          bar.done();
+        }
+      }
+      return rendered.summary;
+    });
     const setup = describeSetup(preset.name, engine.options);
     const written = [cli.output, cli.wav].filter(Boolean).join(' and ');
     io.stdout.write(summaryText(summary, `${input} → ${written}: ${setup}, spelling ${spellingLabel}`));

@@ -1,7 +1,10 @@
-import type { Command } from 'commander';
-import { buildSampleSet, readSourceFolder } from '../audio/sample-set.js';
-import { parseFifthsRange } from '../pitch/index.js';
-import { loadTuningPreset } from '../presets/tuning-presets.js';
+import { Option, type Command } from 'commander';
+import { buildSampleSet, readSourceFolder, setTarget } from '../audio/sample-set.js';
+import { defaultSetRange, reachWarning, spellingReach } from '../audio/set-range.js';
+import { formatRange, parseFifthsRange, parseWindow } from '../pitch/index.js';
+import { loadTuningPreset, PRESETS_DIR } from '../presets/tuning-presets.js';
+import { parseKey } from '../spelling/keys.js';
+import { STRATEGIES, type Strategy } from '../spelling/strategy.js';
 import { A440, formatReference, parseReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from '../util/io.js';
@@ -13,7 +16,10 @@ interface SamplesOptions {
   to: string;
   tuning: string;
   ref?: string;
-  range: string;
+  range?: string;
+  spelling: Strategy;
+  key?: string;
+  window?: string;
   compass: string;
   maxShift: number;
 }
@@ -26,7 +32,10 @@ export function registerSamples(program: Command, io: CommandIo): void {
     .requiredOption('--to <dir>', 'the folder to write (replaced only once the whole set is made)')
     .option('-t, --tuning <id|file>', 'tuning preset id or .json file', 'meantone-1-4')
     .option('--ref <note=hz>', 'reference pitch (default: the preset’s, else A4=440)')
-    .option('--range <from..to>', 'the spellings to build, at most 16 (each gets a channel)', 'Eb..G#')
+    .option('--range <from..to>', 'the spellings to build, at most 16 (each gets a channel) (default: Db..A#, or Eb..G# when the tuning gives G# and Ab one pitch)')
+    .addOption(new Option('--spelling <strategy>', 'the spelling strategy the set will be played with: a warning says when the range misses what it can give').choices([...STRATEGIES]).default('follow'))
+    .option('--key <key>', 'with --spelling key: the key, as "D minor"')
+    .option('--window <from..to>', 'with --spelling fixed: the 12 spellings (default: Eb..G#)')
     .option('--compass <low-high>', 'the instrument’s keys, as MIDI numbers', '36-96')
     .option('--max-shift <semitones>', 'refuse to shift a sample further than this', numberOption('--max-shift', 0, 24), 4)
     .action((cli: SamplesOptions) => {
@@ -36,10 +45,17 @@ export function registerSamples(program: Command, io: CommandIo): void {
       const low = integerOption('--compass', 0, 127)(compass?.[1] ?? 'x');
       const high = integerOption('--compass', 0, 127)(compass?.[2] ?? 'x');
       if (!compass || high < low) throw new UserError(`--compass "${cli.compass}" must be two keys, low-high, as 36-96`, 2);
+      setTarget(cli.to, [cli.from]); // refuse a target that would touch the player's files before any work
+      const range = cli.range !== undefined ? parseFifthsRange(cli.range, '--range') : defaultSetRange(preset.tuning);
+      const key = cli.key === undefined ? undefined : parseKey(cli.key, '--key');
+      if (cli.spelling === 'key' && !key) throw new UserError('--spelling key needs --key, as in --key "D minor"', 2);
+      const window = cli.window === undefined ? undefined : parseWindow(cli.window, '--window');
+      const warning = reachWarning(range, spellingReach(cli.spelling, key, window), cli.spelling, preset.tuning);
+      if (warning) io.stderr.write(`diesis: warning: ${warning}\n`);
       const sources = readSourceFolder(cli.from);
       const bar = progressBar(io.stderr, 'resampling');
       const manifest = buildSampleSet(
-        { sources, tuning: preset.tuning, tuningName: preset.name, reference, range: parseFifthsRange(cli.range, '--range'), compass: { low, high }, maxShift: cli.maxShift },
+        { sources, tuning: preset.tuning, tuningName: preset.name, tuningId: preset.file.startsWith(PRESETS_DIR) ? preset.id : preset.file, reference, range, compass: { low, high }, maxShift: cli.maxShift },
         cli.to,
         bar.update,
       );
@@ -47,7 +63,7 @@ export function registerSamples(program: Command, io: CommandIo): void {
       const worst = Math.max(...manifest.files.map((f) => Math.abs(f.shiftCents)));
       io.stdout.write(
         `${cli.to}: ${manifest.files.length} samples from ${sources.length} sources, ${preset.name} at ${formatReference(reference)} Hz\n` +
-          `  channels: ${manifest.layout.map((l) => `${l.channel} ${l.spelling}`).join(', ')}\n` +
+          `  range ${formatRange(range)}; channels: ${manifest.layout.map((l) => `${l.channel} ${l.spelling}`).join(', ')}\n` +
           `  largest shift ${(worst / 100).toFixed(2)} semitones; mapping diesis.sfz, manifest manifest.json\n` +
           `  play it: diesis play --in KEYBOARD --out SAMPLER --sample-set ${cli.to} -t ${preset.id} --ref ${formatReference(reference)}\n`,
       );

@@ -1,5 +1,4 @@
-import type { MidiEvent } from 'midi-file';
-import { writeMidiFile } from '../render/smf.js';
+import { META, tempoMeta, textMeta, writeMidiFile, type MetaEvent } from '../render/smf.js';
 
 /**
  * Records a take: what came in and what went out, with their times, as a Standard MIDI File
@@ -24,9 +23,9 @@ export class Recorder {
   }
 
   toMidiFile(): Uint8Array {
-    const meta: Array<{ tick: number; event: MidiEvent }> = [
-      { tick: 0, event: { deltaTime: 0, type: 'setTempo', microsecondsPerBeat: 500_000 } },
-      { tick: 0, event: { deltaTime: 0, type: 'trackName', text: 'diesis take: track 2 as played, track 3 as sent' } },
+    const meta: Array<{ tick: number; meta: MetaEvent }> = [
+      { tick: 0, meta: tempoMeta(500_000) },
+      { tick: 0, meta: textMeta(META.trackName, 'diesis take: track 2 as played, track 3 as sent') },
     ];
     const byTick = (a: { tick: number }, b: { tick: number }): number => a.tick - b.tick;
     return writeMidiFile({ ticksPerBeat: 500 }, meta, [[...this.input].sort(byTick), [...this.output].sort(byTick)]);

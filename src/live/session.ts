@@ -28,6 +28,8 @@ export interface SessionOptions {
   readonly lines?: boolean | undefined;
   readonly logFile?: string | undefined;
   readonly recordFile?: string | undefined;
+  /** Files the session reads (tuning, setup, sample set): never replaced by the log or the take. */
+  readonly inputFiles?: readonly string[] | undefined;
   readonly ascii?: boolean | undefined;
   readonly virtualOnly?: boolean | undefined;
   /** Also hears every engine decision (the demo checks what the synth sounded against them). */
@@ -138,7 +140,7 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
       log?.end();
       if (recorder && options.recordFile) {
         try {
-          writeOutputFile(options.recordFile, recorder.toMidiFile());
+          writeOutputFile('--record', options.recordFile, 'midi', recorder.toMidiFile(), options.inputFiles);
         } catch (error) {
           io.stderr.write(`diesis: ${error instanceof UserError ? error.message : String(error)}\n`);
         }

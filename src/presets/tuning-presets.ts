@@ -40,6 +40,18 @@ export interface TuningPreset {
 /** The folder of built-in presets. */
 export const PRESETS_DIR = join(packageRoot(), 'presets') + sep;
 
+/** A fifth the engine can place on the keyboard: between 600 and 800 cents (12-ET's is 700). */
+const FIFTH_CENTS = { low: 600, high: 800 } as const;
+
+function fifthFromSpec(spec: Parameters<typeof intervalFromSpec>[0], path: string): PitchRatio {
+  const size = intervalFromSpec(spec, path);
+  const c = cents(size);
+  if (c <= FIFTH_CENTS.low || c >= FIFTH_CENTS.high) {
+    throw new UserError(`${path}: a fifth of ${c.toFixed(1)} cents cannot be played on a keyboard; a fifth must lie between ${FIFTH_CENTS.low} and ${FIFTH_CENTS.high} cents`);
+  }
+  return size;
+}
+
 const pc = (problems: Problem[], path: string, text: string | undefined, fallback: PitchClass): PitchClass =>
   text === undefined ? fallback : (collecting(problems, path, () => parsePitchClass(text, 'pitch class')) ?? fallback);
 
@@ -47,7 +59,7 @@ function buildTuning(json: TuningPresetJson, problems: Problem[]): Tuning | unde
   const c = pitchClass(0);
   switch (json.kind) {
     case 'regular': {
-      const fifth = collecting(problems, '$.fifth', () => intervalFromSpec(json.fifth, '$.fifth'));
+      const fifth = collecting(problems, '$.fifth', () => fifthFromSpec(json.fifth, '$.fifth'));
       const origin = pc(problems, '$.origin', json.origin, c);
       return fifth && regularTuning(fifth, origin);
     }
@@ -82,7 +94,7 @@ function buildTuning(json: TuningPresetJson, problems: Problem[]): Tuning | unde
 
 function chainSizes(chain: NonNullable<Extract<TuningPresetJson, { kind: 'circulating' }>['chain']>, origin: PitchClass, problems: Problem[]): PitchRatio[] | undefined {
   const start = pc(problems, '$.chain.start', chain.start, origin);
-  const fifths = chain.fifths.map((spec, i) => collecting(problems, `$.chain.fifths[${i}]`, () => intervalFromSpec(spec, `$.chain.fifths[${i}]`)));
+  const fifths = chain.fifths.map((spec, i) => collecting(problems, `$.chain.fifths[${i}]`, () => fifthFromSpec(spec, `$.chain.fifths[${i}]`)));
   if (origin.fifths < start.fifths || origin.fifths > start.fifths + 11) {
     problems.push({ path: '$.chain.start', message: `the chain from ${formatPitchClass(start)} does not reach the origin ${formatPitchClass(origin)}` });
     return undefined;

@@ -1,5 +1,5 @@
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
-import { join } from 'node:path';
+import { existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { buildSampleSet, fileStem, keyFromName, loadSampleSet, playSampleSet, readSourceFolder } from '../../src/audio/sample-set.js';
 import { writeWav } from '../../src/audio/wav.js';
@@ -87,7 +87,7 @@ describe('retuned sample sets', () => {
       ),
     ).toThrow(/semitones from the nearest sample, .*the limit is 1/u);
     expect(existsSync(target)).toBe(false);
-    expect(existsSync(`${target}.tmp-${process.pid}`)).toBe(false);
+    expect(readdirSync(dirname(target))).toEqual([]); // no temporary folder left beside it
   });
 
   it('names the file when a source has no root or is not PCM', () => {

@@ -37,3 +37,11 @@ describe('WAV files, checked against a registry WAV library (wavefile)', () => {
     expect(() => readWav(new Uint8Array([1, 2, 3]), 'junk.wav')).toThrow(/^junk\.wav: not a WAV file/u);
   });
 });
+
+describe('a damaged smpl loop', () => {
+  it('is refused in one line instead of playing silence or NaN', () => {
+    // A loop that ends after the data: written with our writer, then read back.
+    const bytes = writeWav({ sampleRate: 44_100, channels: [new Float32Array(100)], loop: { start: 10, end: 500 } }, 16);
+    expect(() => readWav(bytes, 'loop.wav')).toThrow(/^loop\.wav: its smpl loop \(frames 10 to 499\) does not lie within its 100 frames$/u);
+  });
+});
