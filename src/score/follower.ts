@@ -1,0 +1,351 @@
+import type { SpelledPitch } from '../pitch/index.js';
+import { impliedSpelling } from './implied-spelling.js';
+import type { Score } from './score.js';
+
+/** How a played note was placed: a written note, a note the score implies (ornament, extra, wrong note), or not at all (lost). */
+export type MatchKind = 'score' | 'ornament' | 'fallback';
+
+export interface FollowResult {
+  readonly kind: MatchKind;
+  /** The onset group the note was matched to or heard beside; −1 when lost. */
+  readonly group: number;
+  /** Index into `score.measures`; −1 when lost. */
+  readonly measure: number;
+  /** The spelling from the score; undefined when lost (the fallback strategy spells). */
+  readonly pitch: SpelledPitch | undefined;
+}
+
+export interface FollowerParameters {
+  /** Reward for a played note matched to a written one. */
+  readonly match: number;
+  /** Cost of a played note the score does not have here. */
+  readonly extra: number;
+  /** Cost of each written note passed over unplayed (grace and hidden notes cost `optionalMiss`). */
+  readonly miss: number;
+  readonly optionalMiss: number;
+  /** How many onset groups ahead (along the written order and the jumps) one note may move. */
+  readonly reach: number;
+  /** A note this soon (ms) after its chord began may still belong to it (a spread chord). */
+  readonly chordMs: number;
+  /** Cost per unit of log-ratio by which an advance comes too early for the tempo heard so far. */
+  readonly tempoWeight: number;
+  /** How much earlier than the tempo expects an advance may come before it costs anything. */
+  readonly tempoSlack: number;
+  /** States kept (the best few, within `margin` of the best). */
+  readonly beam: number;
+  readonly margin: number;
+  /** Played notes compared when searching the whole score for where the player is. */
+  readonly window: number;
+}
+
+export const DEFAULT_FOLLOWER: FollowerParameters = {
+  match: 1,
+  extra: 0.6,
+  miss: 0.5,
+  optionalMiss: 0.1,
+  reach: 6,
+  chordMs: 80,
+  tempoWeight: 3,
+  tempoSlack: Math.log(2.5),
+  beam: 12,
+  margin: 4,
+  window: 6,
+};
+
+/** One hypothesis of where the player is: a group, the notes of it heard so far, and its recent history. */
+interface State {
+  readonly group: number;
+  readonly mask: number;
+  readonly value: number;
+  /** When the path entered `group` (ms), the group it came from and what of that group was heard. */
+  readonly enteredAt: number;
+  readonly previous: number;
+  readonly previousMask: number;
+  /** One bit per recent note, newest lowest: 1 = the note was an extra on this path. */
+  readonly history: number;
+  /** Where the newest note went on this path: a group, or −1 for an extra. */
+  readonly matched: number;
+}
+
+interface Reach {
+  readonly targets: Int32Array;
+  /** Written notes passed over between the group and the target (weighted), and score time to it (quarters). */
+  readonly cost: Float64Array;
+  readonly span: Float64Array;
+}
+
+function popcount(n: number): number {
+  let c = 0;
+  for (let x = n; x !== 0; x &= x - 1) c++;
+  return c;
+}
+
+/**
+ * An online, causal score follower: each note is placed when it arrives, from what was heard
+ * before it only.
+ *
+ * The local tracker is the dynamic-programming matcher of R. B. Dannenberg, "An On-Line
+ * Algorithm for Real-Time Accompaniment" (ICMC 1984): every played note either matches a written
+ * note ahead (rewarded) or is an extra (penalised), and written notes passed over are penalised,
+ * keeping the best-scoring alignments in a window around the current place. Here the score is a
+ * sequence of onset groups (chords, matched in any order, as in Dannenberg and Bloch's 1985
+ * extension to polyphony), the window follows the repeat and da capo jumps as well as the written
+ * order, a note that comes just after its chord began may still join it (a spread chord), and an
+ * advance that comes far sooner than the tempo heard so far allows is penalised (so a trill or an
+ * arpeggio does not run ahead through the score).
+ *
+ * When the recent notes fit the place poorly the whole score is searched for the place where the
+ * last few notes fit best (a restart at another bar); when nothing fits the follower declares
+ * itself lost and searches on with every note until it finds its place again.
+ */
+export class ScoreFollower {
+  private states: State[] = [];
+  private readonly reaches: Array<Reach | undefined> = [];
+  private readonly jumpTargets = new Map<number, number[]>();
+  private readonly keyGroups = new Map<number, number[]>();
+  private readonly recentKeys: number[] = [];
+  private lost = false;
+  private tempo = 0; // ms per quarter note, 0 until heard
+  private tempoSamples = 0;
+  private lastGroup = -1;
+
+  constructor(
+    readonly score: Score,
+    private readonly p: FollowerParameters = DEFAULT_FOLLOWER,
+  ) {
+    for (const j of score.jumps) this.jumpTargets.set(j.from, [...(this.jumpTargets.get(j.from) ?? []), j.to]);
+    score.groups.forEach((g) => {
+      for (const k of g.keys) this.keyGroups.set(k, [...(this.keyGroups.get(k) ?? []), g.index]);
+    });
+    this.restart();
+  }
+
+  /** Start again from the beginning (the `score-restart` control). */
+  restart(): void {
+    this.placeBefore(0);
+  }
+
+  /** Go to the first measure numbered `number` (the `score-bar N` control); false when there is none. */
+  goToBar(number: string): boolean {
+    const measure = this.score.measures.find((m) => m.number === number && m.endGroup > m.firstGroup);
+    if (!measure) return false;
+    this.placeBefore(measure.firstGroup);
+    return true;
+  }
+
+  /** True while the follower knows where the player is. */
+  get following(): boolean {
+    return !this.lost;
+  }
+
+  /** The onset group of the best hypothesis (−1 before the first note). */
+  get group(): number {
+    return this.lastGroup;
+  }
+
+  /** The measure the player is in, or −1 when lost or not begun. */
+  get measure(): number {
+    if (this.lost) return -1;
+    const g = this.score.groups[Math.max(0, this.lastGroup)];
+    return g ? g.measure : -1;
+  }
+
+  /** The spelling the score implies for a key here and now, without hearing it (undefined when lost). */
+  implied(key: number): SpelledPitch | undefined {
+    return this.lost ? undefined : impliedSpelling(this.score, Math.max(0, this.lastGroup), key);
+  }
+
+  private placeBefore(group: number): void {
+    const before = group - 1;
+    const full = before >= 0 ? this.fullMask(before) : 0;
+    this.states = [{ group: before, mask: full, value: 0, enteredAt: -Infinity, previous: -1, previousMask: 0, history: 0, matched: -1 }];
+    this.lost = false;
+    this.lastGroup = before;
+    this.recentKeys.length = 0;
+  }
+
+  private fullMask(group: number): number {
+    const n = Math.min(31, this.score.groups[group]?.keys.length ?? 0);
+    return n >= 31 ? 0x7fffffff : (1 << n) - 1;
+  }
+
+  private missCost(group: number, mask: number): number {
+    const g = this.score.groups[group];
+    if (!g) return 0;
+    const left = g.keys.length - popcount(mask);
+    return left * (g.optional ? this.p.optionalMiss : this.p.miss);
+  }
+
+  private reachOf(group: number): Reach {
+    const cached = this.reaches[group + 1];
+    if (cached) return cached;
+    const groups = this.score.groups;
+    const best = new Map<number, { cost: number; span: number }>();
+    const visit = (from: number, depth: number, cost: number, span: number): void => {
+      if (depth >= this.p.reach) return;
+      const next = [from + 1, ...(this.jumpTargets.get(from) ?? [])];
+      for (const t of next) {
+        const target = groups[t];
+        if (!target) continue;
+        const linear = t === from + 1;
+        const dt = linear && from >= 0 ? target.time - groups[from]!.time : 0;
+        const known = best.get(t);
+        if (!known || cost < known.cost) best.set(t, { cost, span: span + dt });
+        const passCost = cost + target.keys.length * (target.optional ? this.p.optionalMiss : this.p.miss);
+        visit(t, depth + 1, passCost, span + dt);
+      }
+    };
+    visit(group, 0, 0, 0);
+    const entries = [...best.entries()];
+    const reach: Reach = {
+      targets: Int32Array.from(entries.map(([t]) => t)),
+      cost: Float64Array.from(entries.map(([, v]) => v.cost)),
+      span: Float64Array.from(entries.map(([, v]) => v.span)),
+    };
+    this.reaches[group + 1] = reach;
+    return reach;
+  }
+
+  /** The penalty for an advance over `span` quarter notes that took `elapsed` ms. */
+  private tempoCost(span: number, elapsed: number): number {
+    if (this.tempoSamples < 3 || span <= 0 || !Number.isFinite(elapsed)) return 0;
+    const expected = span * this.tempo;
+    const early = Math.log((expected + 60) / (Math.max(0, elapsed) + 60)) - this.p.tempoSlack;
+    return early > 0 ? early * this.p.tempoWeight : 0;
+  }
+
+  /** Hears one played note (key, time in ms) and places it. */
+  hear(key: number, time: number): FollowResult {
+    this.recentKeys.unshift(key);
+    if (this.recentKeys.length > this.p.window) this.recentKeys.length = this.p.window;
+    const next = this.step(key, time);
+    const best = next[0]!;
+    this.states = next;
+    const recentExtras = popcount(best.history & 0x0f);
+    if (best.matched < 0 && (recentExtras >= 2 || this.lost)) {
+      const relocated = this.relocate(key, time, best);
+      if (relocated) return this.result(relocated.group, key, 'score');
+    }
+    if (!this.lost && popcount(best.history & 0xff) >= 5) this.lost = true;
+    if (this.lost && (best.history & 0x0f) === 0 && best.matched >= 0) this.lost = false;
+    if (this.lost) return { kind: 'fallback', group: -1, measure: -1, pitch: undefined };
+    if (best.matched >= 0) {
+      this.learnTempo(best, time);
+      return this.result(best.matched, key, 'score');
+    }
+    return this.result(best.group, key, 'ornament');
+  }
+
+  private result(group: number, key: number, kind: MatchKind): FollowResult {
+    this.lastGroup = group;
+    const g = this.score.groups[Math.max(0, group)]!;
+    const written = kind === 'score' ? g.notes.find((n) => n.key === key)?.pitch : undefined;
+    return { kind, group, measure: g.measure, pitch: written ?? impliedSpelling(this.score, Math.max(0, group), key) };
+  }
+
+  private lastAdvance = { group: -1, time: 0 };
+
+  private learnTempo(best: State, time: number): void {
+    if (best.matched !== best.group || best.enteredAt !== time) return;
+    const from = this.lastAdvance;
+    this.lastAdvance = { group: best.group, time };
+    if (from.group < 0 || best.group !== from.group + 1) return;
+    const span = this.score.groups[best.group]!.time - this.score.groups[from.group]!.time;
+    const elapsed = time - from.time;
+    if (span <= 0 || elapsed <= 20) return;
+    const sample = elapsed / span;
+    if (this.tempoSamples === 0) this.tempo = sample;
+    else {
+      const clamped = Math.min(this.tempo * 3, Math.max(this.tempo / 3, sample));
+      this.tempo = Math.exp(0.85 * Math.log(this.tempo) + 0.15 * Math.log(clamped));
+    }
+    this.tempoSamples++;
+  }
+
+  /** One step of the dynamic programme: every kept state either takes the note here, moves on to take it, or counts it extra. */
+  private step(key: number, time: number): State[] {
+    const groups = this.score.groups;
+    const { match, extra } = this.p;
+    const out = new Map<number, State>();
+    const offer = (s: State): void => {
+      const known = out.get(s.group);
+      if (!known || s.value > known.value) out.set(s.group, s);
+    };
+    for (const s of this.states) {
+      const history = (s.history << 1) & 0xffff;
+      const here = groups[s.group];
+      const index = here ? here.keys.indexOf(key) : -1;
+      const before = groups[s.previous];
+      const late = before && time - s.enteredAt <= this.p.chordMs ? before.keys.indexOf(key) : -1;
+      if (index >= 0 && index < 31 && (s.mask & (1 << index)) === 0) {
+        // a note of this group not yet heard
+        offer({ ...s, mask: s.mask | (1 << index), value: s.value + match, history, matched: s.group });
+      } else if (late >= 0 && late < 31 && (s.previousMask & (1 << late)) === 0) {
+        // a late note of the chord just left (a spread chord): it was counted missing, so refund that
+        const refund = before!.optional ? this.p.optionalMiss : this.p.miss;
+        offer({ ...s, previousMask: s.previousMask | (1 << late), value: s.value + match + refund, history, matched: s.previous });
+      } else {
+        // an extra note here
+        offer({ ...s, value: s.value - extra, history: history | 1, matched: -1 });
+      }
+      // or move on to a group ahead that has it
+      const reach = this.reachOf(s.group);
+      const leave = this.missCost(s.group, s.mask);
+      for (let i = 0; i < reach.targets.length; i++) {
+        const t = reach.targets[i]!;
+        const target = groups[t]!;
+        const at = target.keys.indexOf(key);
+        if (at < 0 || at >= 31) continue;
+        const value = s.value + match - leave - reach.cost[i]! - this.tempoCost(reach.span[i]!, time - s.enteredAt);
+        offer({ group: t, mask: 1 << at, value, enteredAt: time, previous: s.group, previousMask: s.mask, history, matched: t });
+      }
+    }
+    const list = [...out.values()].sort((a, b) => b.value - a.value || (a.matched >= 0 ? 0 : 1) - (b.matched >= 0 ? 0 : 1));
+    const top = list[0]!.value;
+    const kept = list.filter((s, i) => i < this.p.beam && s.value >= top - this.p.margin);
+    // keep the values small
+    return kept.map((s) => ({ ...s, value: s.value - top }));
+  }
+
+  /**
+   * Searches the whole score for the group where the last few notes fit best, aligning them
+   * backwards from each group that has the newest note. Moves there when that place explains
+   * clearly more of them than the current one.
+   */
+  private relocate(key: number, time: number, current: State): State | undefined {
+    const candidates = this.keyGroups.get(key);
+    if (!candidates) return undefined;
+    const groups = this.score.groups;
+    let best: { group: number; mask: number; matched: number; distance: number } | undefined;
+    for (const c of candidates) {
+      let pos = c;
+      let mask = 1 << groups[c]!.keys.indexOf(key);
+      const firstMask = mask;
+      let matched = 1;
+      for (let i = 1; i < this.recentKeys.length; i++) {
+        const k = this.recentKeys[i]!;
+        for (let q = pos; q >= 0 && q >= pos - 3; q--) {
+          const idx = groups[q]!.keys.indexOf(k);
+          if (idx < 0) continue;
+          if (q === pos && (mask & (1 << idx)) !== 0) continue;
+          mask = q === pos ? mask | (1 << idx) : 1 << idx;
+          pos = q;
+          matched++;
+          break;
+        }
+      }
+      const distance = c >= current.group ? c - current.group : groups.length + current.group - c;
+      if (!best || matched > best.matched || (matched === best.matched && distance < best.distance)) best = { group: c, mask: firstMask, matched, distance };
+    }
+    if (!best) return undefined;
+    const heard = this.recentKeys.length;
+    const localMatched = heard - popcount(current.history & ((1 << heard) - 1));
+    const needed = this.lost ? Math.min(heard, 4) : Math.min(heard, 3);
+    if (best.matched < needed || best.matched - localMatched < 2 || best.group === current.group) return undefined;
+    const state: State = { group: best.group, mask: best.mask, value: 0, enteredAt: time, previous: -1, previousMask: 0, history: 0, matched: best.group };
+    this.states = [state];
+    this.lost = false;
+    this.lastAdvance = { group: -1, time };
+    return state;
+  }
+}
