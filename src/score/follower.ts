@@ -36,6 +36,13 @@ export interface FollowerParameters {
   readonly margin: number;
   /** Played notes compared when searching the whole score for where the player is. */
   readonly window: number;
+  /** An advance that gains less than this (a match after skipping written notes, or too early) counts as a poor fit. */
+  readonly goodGain: number;
+  /** How many of the newest notes must be a tight run of written notes elsewhere to move there (more while lost). */
+  readonly relocateMin: number;
+  readonly relocateMinLost: number;
+  /** Lost: this many of the last 8 notes fit poorly and lie far from the written notes (or none of the 8 fits well). */
+  readonly lostAfter: number;
 }
 
 export const DEFAULT_FOLLOWER: FollowerParameters = {
@@ -50,6 +57,10 @@ export const DEFAULT_FOLLOWER: FollowerParameters = {
   beam: 12,
   margin: 4,
   window: 6,
+  goodGain: 0.45,
+  relocateMin: 4,
+  relocateMinLost: 5,
+  lostAfter: 5,
 };
 
 /** One hypothesis of where the player is: a group, the notes of it heard so far, and its recent history. */
@@ -61,8 +72,10 @@ interface State {
   readonly enteredAt: number;
   readonly previous: number;
   readonly previousMask: number;
-  /** One bit per recent note, newest lowest: 1 = the note was an extra on this path. */
+  /** One bit per recent note, newest lowest: 1 = the note fitted poorly on this path (an extra, or a match after a skip). */
   readonly history: number;
+  /** The same for notes that fit poorly and lie far from the written notes here (not an ornament or a slip). */
+  readonly stray: number;
   /** Where the newest note went on this path: a group, or −1 for an extra. */
   readonly matched: number;
 }
@@ -117,6 +130,7 @@ export class ScoreFollower {
     score.groups.forEach((g) => {
       for (const k of g.keys) this.keyGroups.set(k, [...(this.keyGroups.get(k) ?? []), g.index]);
     });
+    for (let g = -1; g < score.groups.length; g++) this.reachOf(g); // nothing to compute on the live path
     this.restart();
   }
 
@@ -158,7 +172,7 @@ export class ScoreFollower {
   private placeBefore(group: number): void {
     const before = group - 1;
     const full = before >= 0 ? this.fullMask(before) : 0;
-    this.states = [{ group: before, mask: full, value: 0, enteredAt: -Infinity, previous: -1, previousMask: 0, history: 0, matched: -1 }];
+    this.states = [{ group: before, mask: full, value: 0, enteredAt: -Infinity, previous: -1, previousMask: 0, history: 0, stray: 0, matched: -1 }];
     this.lost = false;
     this.lastGroup = before;
     this.recentKeys.length = 0;
@@ -206,6 +220,15 @@ export class ScoreFollower {
     return reach;
   }
 
+  /** Within two keys, or octaves, of a written note of this group or the next (a neighbour note: trill, mordent, appoggiatura, a wrong key, a doubling). */
+  private isNear(group: number, key: number): boolean {
+    for (let g = Math.max(0, group); g <= group + 1; g++) {
+      const keys = this.score.groups[g]?.keys;
+      if (keys) for (const k of keys) if ((k - key <= 2 && key - k <= 2) || (k - key) % 12 === 0) return true;
+    }
+    return false;
+  }
+
   /** The penalty for an advance over `span` quarter notes that took `elapsed` ms. */
   private tempoCost(span: number, elapsed: number): number {
     if (this.tempoSamples < 3 || span <= 0 || !Number.isFinite(elapsed)) return 0;
@@ -221,13 +244,12 @@ export class ScoreFollower {
     const next = this.step(key, time);
     const best = next[0]!;
     this.states = next;
-    const recentExtras = popcount(best.history & 0x0f);
-    if (best.matched < 0 && (recentExtras >= 2 || this.lost)) {
+    const recentPoor = popcount(best.history & 0x0f);
+    if ((best.history & 1) === 1 && (recentPoor >= 2 || this.lost)) {
       const relocated = this.relocate(key, time, best);
       if (relocated) return this.result(relocated.group, key, 'score');
     }
-    if (!this.lost && popcount(best.history & 0xff) >= 5) this.lost = true;
-    if (this.lost && (best.history & 0x0f) === 0 && best.matched >= 0) this.lost = false;
+    if (!this.lost && (popcount(best.stray & 0xff) >= this.p.lostAfter || (best.history & 0xff) === 0xff)) this.lost = true;
     if (this.lost) return { kind: 'fallback', group: -1, measure: -1, pitch: undefined };
     if (best.matched >= 0) {
       this.learnTempo(best, time);
@@ -273,20 +295,21 @@ export class ScoreFollower {
     };
     for (const s of this.states) {
       const history = (s.history << 1) & 0xffff;
+      const stray = (s.stray << 1) & 0xffff;
       const here = groups[s.group];
       const index = here ? here.keys.indexOf(key) : -1;
       const before = groups[s.previous];
       const late = before && time - s.enteredAt <= this.p.chordMs ? before.keys.indexOf(key) : -1;
       if (index >= 0 && index < 31 && (s.mask & (1 << index)) === 0) {
         // a note of this group not yet heard
-        offer({ ...s, mask: s.mask | (1 << index), value: s.value + match, history, matched: s.group });
+        offer({ ...s, mask: s.mask | (1 << index), value: s.value + match, history, stray, matched: s.group });
       } else if (late >= 0 && late < 31 && (s.previousMask & (1 << late)) === 0) {
         // a late note of the chord just left (a spread chord): it was counted missing, so refund that
         const refund = before!.optional ? this.p.optionalMiss : this.p.miss;
-        offer({ ...s, previousMask: s.previousMask | (1 << late), value: s.value + match + refund, history, matched: s.previous });
+        offer({ ...s, previousMask: s.previousMask | (1 << late), value: s.value + match + refund, history, stray, matched: s.previous });
       } else {
-        // an extra note here
-        offer({ ...s, value: s.value - extra, history: history | 1, matched: -1 });
+        // an extra note here; one beside a written note here or next (an ornament, a slip) is no sign of being lost
+        offer({ ...s, value: s.value - extra, history: history | 1, stray: stray | (this.isNear(s.group, key) ? 0 : 1), matched: -1 });
       }
       // or move on to a group ahead that has it
       const reach = this.reachOf(s.group);
@@ -296,8 +319,9 @@ export class ScoreFollower {
         const target = groups[t]!;
         const at = target.keys.indexOf(key);
         if (at < 0 || at >= 31) continue;
-        const value = s.value + match - leave - reach.cost[i]! - this.tempoCost(reach.span[i]!, time - s.enteredAt);
-        offer({ group: t, mask: 1 << at, value, enteredAt: time, previous: s.group, previousMask: s.mask, history, matched: t });
+        const gain = match - leave - reach.cost[i]! - this.tempoCost(reach.span[i]!, time - s.enteredAt);
+        const fit = gain >= this.p.goodGain ? 0 : 1;
+        offer({ group: t, mask: 1 << at, value: s.value + gain, enteredAt: time, previous: s.group, previousMask: s.mask, history: history | fit, stray: stray | fit, matched: t });
       }
     }
     const list = [...out.values()].sort((a, b) => b.value - a.value || (a.matched >= 0 ? 0 : 1) - (b.matched >= 0 ? 0 : 1));
@@ -308,41 +332,43 @@ export class ScoreFollower {
   }
 
   /**
-   * Searches the whole score for the group where the last few notes fit best, aligning them
-   * backwards from each group that has the newest note. Moves there when that place explains
-   * clearly more of them than the current one.
+   * Searches the whole score for a place where the newest notes are a tight run of written notes:
+   * aligned backwards from each group that has the newest note, every one of the last
+   * `relocateMin` notes (more while lost) must match a note of the same group or of one of the two
+   * before it. Of the places that fit, the nearest ahead of the current place wins (a player more
+   * often goes on or back to a repeat than far away). Random notes rarely make such a run; a
+   * restart does within a few notes.
    */
   private relocate(key: number, time: number, current: State): State | undefined {
     const candidates = this.keyGroups.get(key);
-    if (!candidates) return undefined;
+    const run = this.lost ? this.p.relocateMinLost : this.p.relocateMin;
+    if (!candidates || this.recentKeys.length < run) return undefined;
     const groups = this.score.groups;
-    let best: { group: number; mask: number; matched: number; distance: number } | undefined;
+    let best: { group: number; mask: number; distance: number } | undefined;
     for (const c of candidates) {
       let pos = c;
       let mask = 1 << groups[c]!.keys.indexOf(key);
       const firstMask = mask;
-      let matched = 1;
-      for (let i = 1; i < this.recentKeys.length; i++) {
+      let fits = true;
+      for (let i = 1; i < run && fits; i++) {
         const k = this.recentKeys[i]!;
-        for (let q = pos; q >= 0 && q >= pos - 3; q--) {
+        fits = false;
+        for (let q = pos; q >= 0 && q >= pos - 2; q--) {
           const idx = groups[q]!.keys.indexOf(k);
-          if (idx < 0) continue;
+          if (idx < 0 || idx >= 31) continue;
           if (q === pos && (mask & (1 << idx)) !== 0) continue;
           mask = q === pos ? mask | (1 << idx) : 1 << idx;
           pos = q;
-          matched++;
+          fits = true;
           break;
         }
       }
+      if (!fits) continue;
       const distance = c >= current.group ? c - current.group : groups.length + current.group - c;
-      if (!best || matched > best.matched || (matched === best.matched && distance < best.distance)) best = { group: c, mask: firstMask, matched, distance };
+      if (!best || distance < best.distance) best = { group: c, mask: firstMask, distance };
     }
-    if (!best) return undefined;
-    const heard = this.recentKeys.length;
-    const localMatched = heard - popcount(current.history & ((1 << heard) - 1));
-    const needed = this.lost ? Math.min(heard, 4) : Math.min(heard, 3);
-    if (best.matched < needed || best.matched - localMatched < 2 || best.group === current.group) return undefined;
-    const state: State = { group: best.group, mask: best.mask, value: 0, enteredAt: time, previous: -1, previousMask: 0, history: 0, matched: best.group };
+    if (!best || best.group === current.group) return undefined;
+    const state: State = { group: best.group, mask: best.mask, value: 0, enteredAt: time, previous: -1, previousMask: 0, history: 0, stray: 0, matched: best.group };
     this.states = [state];
     this.lost = false;
     this.lastAdvance = { group: -1, time };
