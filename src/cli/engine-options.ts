@@ -1,4 +1,6 @@
 import { Option, type Command } from 'commander';
+import { dirname, resolve } from 'node:path';
+import { withScore } from '../score/with-score.js';
 import { loadSampleSet, type LoadedSampleSet } from '../audio/sample-set.js';
 import { parseWindow } from '../pitch/index.js';
 import { loadSetupFile, type SetupFile } from '../presets/setup-file.js';
@@ -37,6 +39,7 @@ export interface EngineCliOptions {
   mtsProgram?: number;
   octaveForm?: string;
   sampleSet?: string;
+  score?: string;
 }
 
 export function addEngineOptions(command: Command): Command {
@@ -59,6 +62,7 @@ export function addEngineOptions(command: Command): Command {
     .option('--mts-device <id>', 'MTS device ID, 127 = all (default: 127)', integerOption('--mts-device', 0, 127))
     .option('--mts-program <n>', 'MTS tuning program addressed (default: 0)', integerOption('--mts-program', 0, 127))
     .addOption(new Option('--octave-form <bytes>', 'mts-octave: 1-byte (cents) or 2-byte (fine) messages (default: 2)').choices(['1', '2']))
+    .option('--score <file>', 'follow the piece in its MusicXML score (.musicxml, .xml, .mxl) and spell each note as written')
     .option('--sample-set <dir>', 'play a retuned sample set made by "diesis samples": --mode samples, its channel layout, no bends');
 }
 
@@ -88,7 +92,9 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const key = cli.key !== undefined ? parseKey(cli.key, '--key') : setup?.key;
   if (strategy === 'key' && key === undefined) throw new UserError('--spelling key needs --key, as in --key "D minor"', 2);
   const window = cli.window !== undefined ? parseWindow(cli.window, '--window') : setup?.window;
-  const speller = new ControlledSpeller(createStrategy({ strategy, window, key, follow: json?.spelling?.follow }), setup?.splits ?? []);
+  const scoreFile = cli.score ?? (setup && json?.score !== undefined ? resolve(dirname(setup.file), json.score) : undefined);
+  const base = createStrategy({ strategy, window, key, follow: json?.spelling?.follow });
+  const speller = new ControlledSpeller(scoreFile === undefined ? base : withScore(base, scoreFile), setup?.splits ?? []);
   const octaveForm = cli.octaveForm ?? (json?.output?.octaveForm === undefined ? undefined : String(json.output.octaveForm));
   const options: EngineOptionsInput = {
     tuning: preset.tuning,

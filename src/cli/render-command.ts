@@ -12,6 +12,7 @@ import { UserError } from '../util/errors.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import { readInputFile, writeOutputFile } from '../util/files.js';
 import type { CommandIo } from './io.js';
+import { matchSummary, scoreSpellerOf } from '../score/with-score.js';
 
 export function summaryText(summary: RenderSummary, header: string): string {
   const rows: Array<[string, string]> = [
@@ -57,7 +58,7 @@ export function registerRender(program: Command, io: CommandIo): void {
   addEngineOptions(command).action((input: string, cli: RenderOptions) => {
     if (!cli.output && !cli.wav) throw new UserError('render needs -o OUT.mid or --wav OUT.wav, the file to write', 2);
     for (const out of [cli.output, cli.wav]) if (out && resolve(out) === resolve(input)) throw new UserError(`${out}: refusing to overwrite the input file`, 2);
-    const { preset, options, sampleSet } = resolveEngineCli(cli);
+    const { preset, options, sampleSet, speller } = resolveEngineCli(cli);
     const content = readMidiFile(readInputFile(input), input);
     const engine = resolveEngineOptions({ ...options, gather: 'same-time' }); // in a file, equal onsets are a chord
     let times: number[] = [];
@@ -74,5 +75,7 @@ export function registerRender(program: Command, io: CommandIo): void {
     const setup = describeSetup(preset.name, engine.reference, engine.mode, engine.layout, channelsOf(engine));
     const written = [cli.output, cli.wav].filter(Boolean).join(' and ');
     io.stdout.write(summaryText(summary, `${input} → ${written}: ${setup}`));
+    const score = scoreSpellerOf(speller);
+    if (score) io.stdout.write(`  ${'score'.padEnd(16)}${matchSummary(score.counts)}\n`);
   });
 }

@@ -8,6 +8,7 @@ import { DEFAULT_WOLF_LIMITS } from '../tuning/index.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import type { CommandIo } from './io.js';
 import { readInputFile } from '../util/files.js';
+import { matchSummary, scoreSpellerOf } from '../score/with-score.js';
 import { describeSetup } from './render-command.js';
 import { makeStyle, wantsColour } from './style.js';
 import { renderTable, signed } from './table.js';
@@ -25,7 +26,8 @@ export function registerSpell(program: Command, io: CommandIo): void {
     .option('--json', 'JSON Lines, one object per note-on in file order (fields in the README)')
     .option('--ascii', 'write # and b instead of ♯ and ♭');
   addEngineOptions(command).action((input: string, cli: SpellOptions) => {
-    const { preset, options, strategy } = resolveEngineCli(cli);
+    const { preset, options, strategy, speller } = resolveEngineCli(cli);
+    const score = scoreSpellerOf(speller);
     const content = readMidiFile(readInputFile(input), input);
     let tick = 0;
     const engine = resolveEngineOptions({ ...options, gather: 'same-time' });
@@ -33,8 +35,10 @@ export function registerSpell(program: Command, io: CommandIo): void {
     const router = createRouter({
       ...engine,
       observer: (e) => {
-        if (e.type === 'note') report.note(e, tick);
-        else if (e.type === 'key-up') report.noteOff(e.source, e.inChannel, e.inKey);
+        if (e.type === 'note') {
+          const m = score?.lastMatches().find((r) => r.key === e.inKey && r.channel === e.inChannel && r.source === e.source);
+          report.note(e, tick, m && { bar: m.bar, match: m.match });
+        } else if (e.type === 'key-up') report.noteOff(e.source, e.inChannel, e.inKey);
       },
     });
     renderEvents(content, router, engine.releaseGuardMs, (t) => (tick = t));
@@ -44,7 +48,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
     }
     const names = { accidentals: cli.ascii ? ('ascii' as const) : ('unicode' as const) };
     const style = makeStyle(wantsColour(io.stdout));
-    io.stdout.write(style.bold(`${input}: ${describeSetup(preset.name, engine.reference, engine.mode, engine.layout, engine.channels)}, spelling ${strategy}`) + '\n');
+    io.stdout.write(style.bold(`${input}: ${describeSetup(preset.name, engine.reference, engine.mode, engine.layout, engine.channels)}, spelling ${score ? `from the score, else ${strategy}` : strategy}`) + '\n');
     io.stdout.write(
       renderTable(
         [
@@ -55,11 +59,21 @@ export function registerSpell(program: Command, io: CommandIo): void {
           { header: 'spelling', align: 'left' },
           { header: 'Hz', align: 'right' },
           { header: 'cents', align: 'right' },
+          ...(score ? [{ header: 'bar', align: 'right' as const }, { header: 'match', align: 'left' as const }] : []),
         ],
-        report.rows.map((r) => [r.time.toFixed(3), String(r.tick), String(r.key), String(r.channel), formatSpelledPitch(r.pitch, names), r.hz.toFixed(3), signed(r.cents, 2, cli.ascii)]),
+        report.rows.map((r) => [
+          r.time.toFixed(3),
+          String(r.tick),
+          String(r.key),
+          String(r.channel),
+          formatSpelledPitch(r.pitch, names),
+          r.hz.toFixed(3),
+          signed(r.cents, 2, cli.ascii),
+          ...(score ? [r.score?.bar ?? '-', r.score?.match ?? ''] : []),
+        ]),
         style.bold,
       ) + '\n\n',
     );
-    io.stdout.write(`${report.rows.length} notes\n` + report.summaryText(names));
+    io.stdout.write(`${report.rows.length} notes${score ? `: ${matchSummary(score.counts)}` : ''}\n` + report.summaryText(names));
   });
 }

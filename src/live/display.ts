@@ -5,6 +5,7 @@ import type { ControlledSpeller } from '../spelling/controlled.js';
 import type { Style } from '../cli/style.js';
 import { signed } from '../cli/table.js';
 import type { BridgeNotice } from './bridge.js';
+import { scoreStatus } from '../score/with-score.js';
 
 interface Sounding {
   readonly pitch: SpelledPitch;
@@ -99,6 +100,8 @@ export class LiveView {
     lines.push(s.bold(title));
     const window = formatRange(speller.currentWindow(), this.names);
     lines.push(`spelling ${s.bold(strategy)}  window ${s.bold(window)}${speller.shift ? `  shift ${speller.shift > 0 ? '+' : ''}${speller.shift}` : ''}${router.passing ? s.yellow('  12-ET PASS') : ''}`);
+    const following = scoreStatus(speller);
+    if (following) lines.push(following.includes('LOST') ? s.yellow(following) : following);
     lines.push(`pedals ${on(router.sustainDown, 'sustain')} ${on(router.sostenutoDown, 'sostenuto')}   latches ${on(speller.flip, 'flip')} ${on(speller.force === 'sharps', 'sharps')} ${on(speller.force === 'flats', 'flats')} ${on(speller.frozen, 'freeze')}`);
     lines.push(`ports  in ${ports.inputs.map((ok, i) => (ok ? s.green(`${i + 1}:ok`) : s.red(`${i + 1}:GONE`))).join(' ')}  out ${ports.output ? s.green('ok') : s.red('GONE')}`);
     lines.push('');

@@ -15,6 +15,8 @@ export interface SpellRow {
   readonly hz: number;
   /** Cents from the 12-ET pitch of the same key at the same reference. */
   readonly cents: number;
+  /** With a score: the measure number (null while lost) and how the note was placed. */
+  readonly score?: { readonly bar: string | null; readonly match: string } | undefined;
 }
 
 export interface WolfCount {
@@ -33,7 +35,7 @@ export class SpellReport {
 
   constructor(private readonly limits: WolfLimits) {}
 
-  note(event: Extract<RouterEvent, { type: 'note' }>, tick: number): void {
+  note(event: Extract<RouterEvent, { type: 'note' }>, tick: number, score?: SpellRow['score']): void {
     const row: SpellRow = {
       tick,
       time: event.time / 1000,
@@ -42,6 +44,7 @@ export class SpellReport {
       pitch: event.pitch,
       hz: event.hz,
       cents: event.cents,
+      score,
     };
     for (const other of this.held.values()) this.checkPair(other, row);
     this.held.set(event.source * 2048 + event.inChannel * 128 + event.inKey, row);
@@ -84,7 +87,7 @@ export class SpellReport {
   /** The rows as JSON Lines (the documented fields). */
   jsonLines(): string {
     return this.rows
-      .map((r) => JSON.stringify({ tick: r.tick, time: r.time, key: r.key, channel: r.channel, spelling: formatSpelledPitch(r.pitch), hz: r.hz, cents: r.cents }))
+      .map((r) => JSON.stringify({ tick: r.tick, time: r.time, key: r.key, channel: r.channel, spelling: formatSpelledPitch(r.pitch), hz: r.hz, cents: r.cents, ...(r.score && { bar: r.score.bar !== null && /^\d+$/u.test(r.score.bar) ? Number(r.score.bar) : r.score.bar, match: r.score.match }) }))
       .join('\n') + (this.rows.length ? '\n' : '');
   }
 
