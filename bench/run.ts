@@ -4,6 +4,7 @@ import { disableMidi } from '../src/io/midi-system.js';
 import { benchAudio } from './audio.js';
 import { benchLatency, benchSoak } from './live.js';
 import { benchRouter } from './router.js';
+import { benchScore } from './score.js';
 import { benchSpelling } from './spelling.js';
 import { benchTuning } from './tuning.js';
 
@@ -14,6 +15,7 @@ if (!soakOnly) {
   benchTuning();
   benchRouter();
   benchSpelling();
+  benchScore();
   benchAudio();
   await benchLatency();
 }
