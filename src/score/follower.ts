@@ -56,7 +56,7 @@ export const DEFAULT_FOLLOWER: FollowerParameters = {
   tempoSlack: Math.log(2.5),
   beam: 12,
   margin: 4,
-  window: 6,
+  window: 10,
   goodGain: 0.45,
   relocateMin: 4,
   relocateMinLost: 5,
@@ -288,10 +288,16 @@ export class ScoreFollower {
   private step(key: number, time: number): State[] {
     const groups = this.score.groups;
     const { match, extra } = this.p;
-    const out = new Map<number, State>();
-    const offer = (s: State): void => {
-      const known = out.get(s.group);
-      if (!known || s.value > known.value) out.set(s.group, s);
+    const out: State[] = [];
+    // the best state per group only (a Viterbi step); objects are made only for an improvement
+    const worse = (group: number, value: number): boolean => {
+      for (const o of out) if (o.group === group) return o.value >= value;
+      return false;
+    };
+    const offer = (state: State): void => {
+      const at = out.findIndex((o) => o.group === state.group);
+      if (at >= 0) out[at] = state;
+      else out.push(state);
     };
     for (const s of this.states) {
       const history = (s.history << 1) & 0xffff;
@@ -302,41 +308,44 @@ export class ScoreFollower {
       const late = before && time - s.enteredAt <= this.p.chordMs ? before.keys.indexOf(key) : -1;
       if (index >= 0 && index < 31 && (s.mask & (1 << index)) === 0) {
         // a note of this group not yet heard
-        offer({ ...s, mask: s.mask | (1 << index), value: s.value + match, history, stray, matched: s.group });
+        if (!worse(s.group, s.value + match)) offer({ ...s, mask: s.mask | (1 << index), value: s.value + match, history, stray, matched: s.group });
       } else if (late >= 0 && late < 31 && (s.previousMask & (1 << late)) === 0) {
         // a late note of the chord just left (a spread chord): it was counted missing, so refund that
-        const refund = before!.optional ? this.p.optionalMiss : this.p.miss;
-        offer({ ...s, previousMask: s.previousMask | (1 << late), value: s.value + match + refund, history, stray, matched: s.previous });
-      } else {
+        const value = s.value + match + (before!.optional ? this.p.optionalMiss : this.p.miss);
+        if (!worse(s.group, value)) offer({ ...s, previousMask: s.previousMask | (1 << late), value, history, stray, matched: s.previous });
+      } else if (!worse(s.group, s.value - extra)) {
         // an extra note here; one beside a written note here or next (an ornament, a slip) is no sign of being lost
         offer({ ...s, value: s.value - extra, history: history | 1, stray: stray | (this.isNear(s.group, key) ? 0 : 1), matched: -1 });
       }
       // or move on to a group ahead that has it
       const reach = this.reachOf(s.group);
       const leave = this.missCost(s.group, s.mask);
+      const elapsed = time - s.enteredAt;
       for (let i = 0; i < reach.targets.length; i++) {
         const t = reach.targets[i]!;
-        const target = groups[t]!;
-        const at = target.keys.indexOf(key);
+        const at = groups[t]!.keys.indexOf(key);
         if (at < 0 || at >= 31) continue;
-        const gain = match - leave - reach.cost[i]! - this.tempoCost(reach.span[i]!, time - s.enteredAt);
+        const gain = match - leave - reach.cost[i]! - this.tempoCost(reach.span[i]!, elapsed);
+        if (worse(t, s.value + gain)) continue;
         const fit = gain >= this.p.goodGain ? 0 : 1;
         offer({ group: t, mask: 1 << at, value: s.value + gain, enteredAt: time, previous: s.group, previousMask: s.mask, history: history | fit, stray: stray | fit, matched: t });
       }
     }
-    const list = [...out.values()].sort((a, b) => b.value - a.value || (a.matched >= 0 ? 0 : 1) - (b.matched >= 0 ? 0 : 1));
-    const top = list[0]!.value;
-    const kept = list.filter((s, i) => i < this.p.beam && s.value >= top - this.p.margin);
-    // keep the values small
-    return kept.map((s) => ({ ...s, value: s.value - top }));
+    // best first (a match before an extra on equal value); keep the best few near the top
+    out.sort((a, b) => b.value - a.value || (a.matched >= 0 ? 0 : 1) - (b.matched >= 0 ? 0 : 1));
+    const floor = out[0]!.value - this.p.margin;
+    let n = 1;
+    while (n < out.length && n < this.p.beam && out[n]!.value >= floor) n++;
+    out.length = n;
+    return out;
   }
 
   /**
    * Searches the whole score for a place where the newest notes are a tight run of written notes:
    * aligned backwards from each group that has the newest note, every one of the last
    * `relocateMin` notes (more while lost) must match a note of the same group or of one of the two
-   * before it. Of the places that fit, the nearest ahead of the current place wins (a player more
-   * often goes on or back to a repeat than far away). Random notes rarely make such a run; a
+   * before it. Of the places that fit, the one that explains most of the last `window` notes wins,
+   * then the nearest ahead of the current place (a player more often goes on than far away). Random notes rarely make such a run; a
    * restart does within a few notes.
    */
   private relocate(key: number, time: number, current: State): State | undefined {
@@ -344,28 +353,31 @@ export class ScoreFollower {
     const run = this.lost ? this.p.relocateMinLost : this.p.relocateMin;
     if (!candidates || this.recentKeys.length < run) return undefined;
     const groups = this.score.groups;
-    let best: { group: number; mask: number; distance: number } | undefined;
+    let best: { group: number; mask: number; matched: number; distance: number } | undefined;
     for (const c of candidates) {
       let pos = c;
       let mask = 1 << groups[c]!.keys.indexOf(key);
       const firstMask = mask;
-      let fits = true;
-      for (let i = 1; i < run && fits; i++) {
+      let matched = 1;
+      for (let i = 1; i < this.recentKeys.length; i++) {
+        if (i >= run && best && matched + (this.recentKeys.length - i) < best.matched) break; // cannot win any more
         const k = this.recentKeys[i]!;
-        fits = false;
+        let found = false;
         for (let q = pos; q >= 0 && q >= pos - 2; q--) {
           const idx = groups[q]!.keys.indexOf(k);
           if (idx < 0 || idx >= 31) continue;
           if (q === pos && (mask & (1 << idx)) !== 0) continue;
           mask = q === pos ? mask | (1 << idx) : 1 << idx;
           pos = q;
-          fits = true;
+          found = true;
           break;
         }
+        if (found) matched++;
+        else if (i < run) break; // the newest notes must be a run
       }
-      if (!fits) continue;
+      if (matched < run) continue;
       const distance = c >= current.group ? c - current.group : groups.length + current.group - c;
-      if (!best || distance < best.distance) best = { group: c, mask: firstMask, distance };
+      if (!best || matched > best.matched || (matched === best.matched && distance < best.distance)) best = { group: c, mask: firstMask, matched, distance };
     }
     if (!best || best.group === current.group) return undefined;
     const state: State = { group: best.group, mask: best.mask, value: 0, enteredAt: time, previous: -1, previousMask: 0, history: 0, stray: 0, matched: best.group };
