@@ -121,6 +121,8 @@ export class ScoreFollower {
   private tempo = 0; // ms per quarter note, 0 until heard
   private tempoSamples = 0;
   private lastGroup = -1;
+  /** Where a control put the player, shown until the next note (−1: the start, nothing shown). */
+  private cue = -1;
 
   constructor(
     readonly score: Score,
@@ -160,13 +162,13 @@ export class ScoreFollower {
   /** The measure the player is in, or −1 when lost or not begun. */
   get measure(): number {
     if (this.lost) return -1;
-    const g = this.score.groups[Math.max(0, this.lastGroup)];
+    const g = this.score.groups[this.lastGroup < 0 ? this.cue : this.lastGroup];
     return g ? g.measure : -1;
   }
 
   /** The spelling the score implies for a key here and now, without hearing it (undefined when lost). */
   implied(key: number): SpelledPitch | undefined {
-    return this.lost ? undefined : impliedSpelling(this.score, Math.max(0, this.lastGroup), key);
+    return this.lost ? undefined : impliedSpelling(this.score, Math.max(0, this.lastGroup < 0 ? this.cue : this.lastGroup), key);
   }
 
   private placeBefore(group: number): void {
@@ -174,7 +176,8 @@ export class ScoreFollower {
     const full = before >= 0 ? this.fullMask(before) : 0;
     this.states = [{ group: before, mask: full, value: 0, enteredAt: -Infinity, previous: -1, previousMask: 0, history: 0, stray: 0, matched: -1 }];
     this.lost = false;
-    this.lastGroup = before;
+    this.lastGroup = -1;
+    this.cue = group > 0 ? group : -1;
     this.recentKeys.length = 0;
   }
 

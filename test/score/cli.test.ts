@@ -68,3 +68,23 @@ describe('--score on spell and render, and score in a setup', () => {
     expect(broken.stderr).toMatch(/broken\.musicxml: part P1, measure 4: <note> has no valid <duration>/u);
   });
 });
+
+describe('the stage display line', () => {
+  it('shows the bar while following and says plainly when lost', async () => {
+    const { scoreStatus } = await import('../../src/score/with-score.js');
+    const { ScoreSpeller } = await import('../../src/score/score-speller.js');
+    const { ControlledSpeller } = await import('../../src/spelling/controlled.js');
+    const { WindowSpeller } = await import('../../src/spelling/speller.js');
+    const plain = new ControlledSpeller(new WindowSpeller());
+    expect(scoreStatus(plain)).toBeUndefined();
+    const read = readScoreFile(score);
+    const speller = new ControlledSpeller(new ScoreSpeller(read, new WindowSpeller()));
+    expect(scoreStatus(speller)).toBe('score  following, waiting for the first note');
+    const first = read.groups[0]!;
+    speller.spell(first.keys.map((key) => ({ key, velocity: 64, time: 0, channel: 0, source: 0 })));
+    expect(scoreStatus(speller)).toBe(`score  following, bar ${read.measures[first.measure]!.number}`);
+    // a cluster of keys far below the movement's range, again and again: nothing in the score is near
+    for (let i = 0; i < 12; i++) speller.spell([{ key: 21 + (i % 3), velocity: 64, time: 1000 + 100 * i, channel: 0, source: 0 }]);
+    expect(scoreStatus(speller)).toMatch(/^score {2}LOST/u);
+  });
+});
