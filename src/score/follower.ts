@@ -117,6 +117,8 @@ export class ScoreFollower {
   private readonly jumpTargets = new Map<number, number[]>();
   private readonly keyGroups = new Map<number, number[]>();
   private readonly recentKeys: number[] = [];
+  /** Per group, the keys of it and the two groups before it, as a 128-bit set (a quick filter for relocation). */
+  private readonly nearKeys: Uint32Array;
   private lost = false;
   private tempo = 0; // ms per quarter note, 0 until heard
   private tempoSamples = 0;
@@ -133,6 +135,10 @@ export class ScoreFollower {
       for (const k of g.keys) this.keyGroups.set(k, [...(this.keyGroups.get(k) ?? []), g.index]);
     });
     for (let g = -1; g < score.groups.length; g++) this.reachOf(g); // nothing to compute on the live path
+    this.nearKeys = new Uint32Array(4 * score.groups.length);
+    score.groups.forEach((g) => {
+      for (let q = g.index; q >= 0 && q >= g.index - 2; q--) for (const k of score.groups[q]!.keys) this.nearKeys[4 * g.index + (k >> 5)]! |= 1 << (k & 31);
+    });
     this.restart();
   }
 
@@ -247,8 +253,11 @@ export class ScoreFollower {
     const next = this.step(key, time);
     const best = next[0]!;
     this.states = next;
+    // search elsewhere when the newest note fits poorly and the recent ones do too: two of them far
+    // from the written notes, or three of them at all (an ornament near the place is no reason)
     const recentPoor = popcount(best.history & 0x0f);
-    if ((best.history & 1) === 1 && (recentPoor >= 2 || this.lost)) {
+    const recentStray = popcount(best.stray & 0x0f);
+    if ((best.history & 1) === 1 && (recentStray >= 1 || recentPoor >= 3 || this.lost)) {
       const relocated = this.relocate(key, time, best);
       if (relocated) return this.result(relocated.group, key, 'score');
     }
@@ -357,7 +366,11 @@ export class ScoreFollower {
     if (!candidates || this.recentKeys.length < run) return undefined;
     const groups = this.score.groups;
     let best: { group: number; mask: number; matched: number; distance: number } | undefined;
+    const second = this.recentKeys[1]!;
+    const word = second >> 5;
+    const bit = 1 << (second & 31);
     for (const c of candidates) {
+      if ((this.nearKeys[4 * c + word]! & bit) === 0) continue; // the note before is not here or just before
       let pos = c;
       let mask = 1 << groups[c]!.keys.indexOf(key);
       const firstMask = mask;
