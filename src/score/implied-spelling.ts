@@ -1,4 +1,4 @@
-import { keyboardWindow, LETTER_SEMITONES, LETTERS_BY_FIFTHS, letterOf, alterationOf, onKey, pitchClassOf, spellKey, type Letter, type SpelledPitch } from '../pitch/index.js';
+import { keyOf, keyboardWindow, LETTER_SEMITONES, LETTERS_BY_FIFTHS, letterOf, alterationOf, onKey, pitchClassOf, spellKey, type Letter, type SpelledPitch } from '../pitch/index.js';
 import { mod } from '../util/errors.js';
 import type { Score } from './score.js';
 
@@ -15,7 +15,8 @@ function signatureAlteration(letter: Letter, keyFifths: number): number {
 
 /**
  * The spelling a note the score does not have (an ornament, an extra or a wrong note) takes from
- * its neighbours in the score at onset group `group`: the written spelling of the same key (or
+ * its neighbours in the score at onset group `group`: the marked upper or lower note of a written
+ * ornament there, the written spelling of the same key (or
  * the same key class) within a few groups; else the letter whose alteration is in force there
  * (the measure's key signature, changed by the accidentals written earlier in the measure, as
  * common practice reads them, no source); else the window of the key signature's major key.
@@ -23,6 +24,11 @@ function signatureAlteration(letter: Letter, keyFifths: number): number {
 export function impliedSpelling(score: Score, group: number, key: number): SpelledPitch {
   const groups = score.groups;
   const at = Math.max(0, Math.min(groups.length - 1, group));
+  // a written ornament's marked auxiliary: on the note just played, on the next (a trill begun from
+  // above comes before its note), or on one a little before
+  for (const g of [at, at + 1, at - 1, at - 2, at - 3]) {
+    for (const n of groups[g]?.notes ?? []) for (const a of n.auxiliaries) if (keyOf(a) === key) return a;
+  }
   let sameClass: SpelledPitch | undefined;
   for (let d = 0; d <= NEAR_GROUPS; d++) {
     for (const g of d === 0 ? [at] : [at - d, at + d]) {

@@ -1,4 +1,4 @@
-import { keyOf, pitchClass, pitchClassOf, spelledPitch, type Letter, type SpelledPitch } from '../pitch/index.js';
+import { keyOf, letterOf, pitchClass, pitchClassOf, spelledPitch, type Letter, type SpelledPitch } from '../pitch/index.js';
 import { UserError } from '../util/errors.js';
 import type { Jump, MeasureMarks, OnsetGroup, Score, ScoreMeasure, ScoreNote } from './score.js';
 import { jumpsOf } from './structure.js';
@@ -148,6 +148,7 @@ function readPart(part: XmlElement, partIndex: number, file: string, readings: M
           const note = {
             key: keyOf(pitch),
             pitch,
+            auxiliaries: ornamentNotes(element, pitch),
             part: partIndex,
             staff: Number(childText(element, 'staff') ?? 1),
             voice: childText(element, 'voice') ?? '1',
@@ -199,6 +200,45 @@ function soundingPitch(written: SpelledPitch, t: { diatonic: number; chromatic: 
   const key = keyOf(written) + t.chromatic;
   const base = spelledPitch(pitchClass(fifths), 0);
   return spelledPitch(pitchClass(fifths), (key - keyOf(base)) / 12);
+}
+
+const ACCIDENTAL_MARKS: Readonly<Record<string, number>> = { sharp: 1, natural: 0, flat: -1, 'double-sharp': 2, 'sharp-sharp': 2, 'flat-flat': -2 };
+const UPPER = new Set(['trill-mark', 'inverted-mordent', 'shake']);
+const LOWER = new Set(['mordent']);
+const BOTH = new Set(['turn', 'inverted-turn', 'delayed-turn', 'delayed-inverted-turn', 'vertical-turn']);
+
+/**
+ * The auxiliary notes of a written ornament whose accidental the score marks (`<accidental-mark>`
+ * in `<ornaments>`, MusicXML 4.0): a trill's or inverted mordent's upper note, a mordent's lower
+ * note, a turn's upper (mark above) or lower (mark below) note. Unmarked auxiliaries follow the
+ * key signature and the accidentals in force, which `impliedSpelling` already reads.
+ */
+function ornamentNotes(note: XmlElement, main: SpelledPitch): SpelledPitch[] {
+  const out: SpelledPitch[] = [];
+  for (const notations of childrenNamed(note, 'notations')) {
+    for (const ornaments of childrenNamed(notations, 'ornaments')) {
+      const kinds = ornaments.children.map((c) => c.name);
+      const upper = kinds.some((k) => UPPER.has(k) || BOTH.has(k));
+      const lower = kinds.some((k) => LOWER.has(k) || BOTH.has(k));
+      for (const mark of childrenNamed(ornaments, 'accidental-mark')) {
+        const alteration = ACCIDENTAL_MARKS[mark.text];
+        if (alteration === undefined) continue;
+        const placement = mark.attributes.placement;
+        const direction = upper && lower ? (placement === 'below' ? -1 : 1) : upper ? 1 : lower ? -1 : 0;
+        if (direction !== 0) out.push(neighbour(main, direction, alteration));
+      }
+    }
+  }
+  return out;
+}
+
+/** The note a step above (+1) or below (−1) a written note, with the given alteration. */
+function neighbour(main: SpelledPitch, direction: number, alteration: number): SpelledPitch {
+  const order: Letter[] = ['C', 'D', 'E', 'F', 'G', 'A', 'B'];
+  const index = order.indexOf(letterOf(main)) + direction;
+  const letter = order[(index + 7) % 7]!;
+  const octave = main.octave + (index < 0 ? -1 : index > 6 ? 1 : 0);
+  return spelledPitch(pitchClassOf(letter, alteration), octave);
 }
 
 function endingNumbers(text: string | undefined): number[] {
@@ -258,7 +298,7 @@ function assemble(title: string, readings: readonly MeasureReading[], starts: re
       index: groups.length,
       measure: Math.min(...members.map((m) => m.measure)),
       time: first.time,
-      notes: members.map(({ key, pitch, part, staff, voice, grace, hidden }) => ({ key, pitch, part, staff, voice, grace, hidden })),
+      notes: members.map(({ key, pitch, part, staff, voice, grace, hidden, auxiliaries }) => ({ key, pitch, part, staff, voice, grace, hidden, auxiliaries })),
       keys,
       optional: members.every((m) => m.grace || m.hidden),
       keyFifths: first.keyFifths,

@@ -14,6 +14,8 @@ export interface ScoreNote {
   readonly grace: boolean;
   /** Marked `print-object="no"`: an ornament's realisation the notation program wrote out. */
   readonly hidden: boolean;
+  /** The upper or lower note of a written trill, mordent or turn whose accidental the score marks. */
+  readonly auxiliaries: readonly SpelledPitch[];
 }
 
 /**

@@ -95,6 +95,26 @@ describe('reading MusicXML', () => {
     expect(unfoldMeasures(s).map((m) => s.measures[m]!.number)).toEqual(['1', '2', '3', '1', '2', '4', '5', '6', '5']);
   });
 
+  it('spells a written ornament’s auxiliary note from its accidental mark (MusicXML 4.0 <accidental-mark> in <ornaments>)', () => {
+    const ornaments = (inner: string): string => `<notations><ornaments>${inner}</ornaments></notations>`;
+    const s = read(
+      wrap(
+        `<measure number="1">${ATTRS}` +
+          quarter('E', 4, ornaments('<mordent/><accidental-mark placement="below">sharp</accidental-mark>')) + // lower note D#4
+          quarter('C', 5, ornaments('<turn/><accidental-mark placement="above">flat</accidental-mark><accidental-mark placement="below">sharp</accidental-mark>')) + // Db5 above, B#4 below
+          quarter('B', 4, ornaments('<trill-mark/><accidental-mark>sharp</accidental-mark>')) + // upper note C#5
+          quarter('G', 4, ornaments('<trill-mark/>')) + // unmarked: as the key has it
+          '</measure>',
+      ),
+    );
+    expect(s.groups.map((g) => g.notes[0]!.auxiliaries.map((a) => formatSpelledPitch(a, ascii)))).toEqual([['D#4'], ['Db5', 'B#4'], ['C#5'], []]);
+    const spell = (group: number, key: number): string => formatSpelledPitch(impliedSpelling(s, group, key), ascii);
+    expect(spell(0, 63)).toBe('D#4'); // C major's own window would say Eb
+    expect(spell(1, 73)).toBe('Db5');
+    expect(spell(2, 73)).toBe('C#5'); // the trill on B, a group later, marks C#
+    expect(spell(3, 69)).toBe('A4');
+  });
+
   it('reads da capo and a repeat with no forward barline (back to the start)', () => {
     const s = read(wrap(`<measure number="1">${ATTRS}${quarter('C')}</measure><measure number="2">${quarter('D')}<barline location="right"><repeat direction="backward"/></barline></measure><measure number="3">${quarter('E')}<sound dacapo="yes"/></measure>`));
     expect(s.jumps).toEqual([
