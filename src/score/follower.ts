@@ -192,11 +192,13 @@ export class ScoreFollower {
     return n >= 31 ? 0x7fffffff : (1 << n) - 1;
   }
 
+  /** Leaving a group with notes unheard: a chord played thinner costs at most one missed note. */
   private missCost(group: number, mask: number): number {
     const g = this.score.groups[group];
     if (!g) return 0;
     const left = g.keys.length - popcount(mask);
-    return left * (g.optional ? this.p.optionalMiss : this.p.miss);
+    const each = g.optional ? this.p.optionalMiss : this.p.miss;
+    return mask === 0 ? left * each : Math.min(left, 1) * each;
   }
 
   private reachOf(group: number): Reach {
