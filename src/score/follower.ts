@@ -259,7 +259,7 @@ export class ScoreFollower {
     // from the written notes, or three of them at all (an ornament near the place is no reason)
     const recentPoor = popcount(best.history & 0x0f);
     const recentStray = popcount(best.stray & 0x0f);
-    if ((best.history & 1) === 1 && (recentStray >= 1 || recentPoor >= 3 || this.lost)) {
+    if (this.lost || ((best.history & 1) === 1 && (recentStray >= 1 || recentPoor >= 3))) {
       const relocated = this.relocate(key, time, best);
       if (relocated) return this.result(relocated.group, key, 'score');
     }
