@@ -41,6 +41,8 @@ export interface FollowerParameters {
   /** How many of the newest notes must be a tight run of written notes elsewhere to move there (more while lost). */
   readonly relocateMin: number;
   readonly relocateMinLost: number;
+  /** How many equally good places a relocation keeps as hypotheses. */
+  readonly relocateKeep: number;
   /** Lost: this many of the last 8 notes fit poorly and lie far from the written notes (or none of the 8 fits well). */
   readonly lostAfter: number;
 }
@@ -60,6 +62,7 @@ export const DEFAULT_FOLLOWER: FollowerParameters = {
   goodGain: 0.45,
   relocateMin: 4,
   relocateMinLost: 5,
+  relocateKeep: 4,
   lostAfter: 5,
 };
 
@@ -358,8 +361,9 @@ export class ScoreFollower {
    * Searches the whole score for a place where the newest notes are a tight run of written notes:
    * aligned backwards from each group that has the newest note, every one of the last
    * `relocateMin` notes (more while lost) must match a note of the same group or of one of the two
-   * before it. Of the places that fit, the one that explains most of the last `window` notes wins,
-   * then the nearest ahead of the current place (a player more often goes on than far away). Random notes rarely make such a run; a
+   * before it. The places that explain most of the last `window` notes are kept as hypotheses (up
+   * to `relocateKeep`, nearest ahead of the current place first: a player more often goes on than
+   * far away), and the notes to come decide among them. Random notes rarely make such a run; a
    * restart does within a few notes.
    */
   private relocate(key: number, time: number, current: State): State | undefined {
@@ -368,6 +372,7 @@ export class ScoreFollower {
     if (!candidates || this.recentKeys.length < run) return undefined;
     const groups = this.score.groups;
     let best: { group: number; mask: number; matched: number; distance: number } | undefined;
+    const fits: Array<NonNullable<typeof best>> = [];
     const second = this.recentKeys[1]!;
     const word = second >> 5;
     const bit = 1 << (second & 31);
@@ -395,13 +400,17 @@ export class ScoreFollower {
       }
       if (matched < run) continue;
       const distance = c >= current.group ? c - current.group : groups.length + current.group - c;
-      if (!best || matched > best.matched || (matched === best.matched && distance < best.distance)) best = { group: c, mask: firstMask, matched, distance };
+      const fit = { group: c, mask: firstMask, matched, distance };
+      if (!best || matched > best.matched || (matched === best.matched && distance < best.distance)) best = fit;
+      fits.push(fit);
     }
     if (!best || best.group === current.group) return undefined;
-    const state: State = { group: best.group, mask: best.mask, value: 0, enteredAt: time, previous: -1, previousMask: 0, history: 0, stray: 0, matched: best.group };
-    this.states = [state];
+    // the places that fit as well as the best, nearest first, all kept: the notes to come decide among them
+    const top = best.matched;
+    const equal = fits.filter((f) => f.matched === top).sort((a, b) => a.distance - b.distance).slice(0, this.p.relocateKeep);
+    this.states = equal.map((f, i) => ({ group: f.group, mask: f.mask, value: -0.01 * i, enteredAt: time, previous: -1, previousMask: 0, history: 0, stray: 0, matched: f.group }));
     this.lost = false;
     this.lastAdvance = { group: -1, time };
-    return state;
+    return this.states[0];
   }
 }
