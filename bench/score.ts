@@ -104,7 +104,7 @@ export function benchScore(names: readonly string[] = scoreNames()): void {
   const restarts: number[] = [];
   const repeats: number[] = [];
   let costs: number[] = [];
-  let largest = { name: '', notes: 0, costs: [] as number[] };
+  let nearest = { name: '', notes: 0, score: undefined as Score | undefined, performance: [] as PlayedNote[] };
   for (const name of names) {
     const score = readScoreFile(join(SCORES_DIR, `${name}.mxl`));
     const take = corpusTake(name, score);
@@ -122,7 +122,7 @@ export function benchScore(names: readonly string[] = scoreNames()): void {
     totals.jumpy[1]! += jumpy.written;
     for (const r of [...clean.relocations, ...jumpy.relocations]) (r.kind === 'restart' ? restarts : repeats).push(r.notes);
     costs = costs.concat(flawed.costs.slice(20)); // past the first notes' compilation
-    if (flawedNotes.length > largest.notes) largest = { name, notes: flawedNotes.length, costs: flawed.costs.slice(20) };
+    if (Math.abs(flawedNotes.length - 3000) < Math.abs(nearest.notes - 3000)) nearest = { name, notes: flawedNotes.length, score, performance: flawedNotes };
     const relocs = jumpy.relocations.filter((r) => r.kind === 'restart').map((r) => r.notes);
     process.stdout.write(
       `${name.padEnd(13)}${String(take.notes).padStart(7)}${pct(take.correct, take.notes).padStart(9)}${pct(clean.correct, clean.written).padStart(9)}${pct(flawed.correct, flawed.written).padStart(9)}${pct(jumpy.correct, jumpy.written).padStart(9)}  ${relocs.join(', ') || '–'}\n`,
@@ -132,7 +132,10 @@ export function benchScore(names: readonly string[] = scoreNames()): void {
   const r = sorted(restarts);
   const rp = sorted(repeats);
   const c = sorted(costs);
-  const big = sorted(largest.costs);
+  // the movement nearest 3,000 played notes, five times: each note's least time is its cost without preemption
+  const runs = nearest.score ? Array.from({ length: 5 }, () => followPerformance(nearest.score!, nearest.performance, true).costs) : [];
+  const single = sorted(runs[0] ?? []);
+  const least = sorted((runs[0] ?? []).map((_, i) => Math.min(...runs.map((r) => r[i]!))).slice(20));
   process.stdout.write(`overall: the corpus's own takes ${pct(totals.corpus[0]!, totals.corpus[1]!)} of ${totals.corpus[1]} notes as written (goal ≥ 99.95%)\n`);
   process.stdout.write(`         made clean performances ${pct(totals.clean[0]!, totals.clean[1]!)} of ${totals.clean[1]} written notes (goal ≥ 99.95%)\n`);
   process.stdout.write(`         with ~1% wrong, ~0.8% extra, ~1% dropped notes and 2% unwritten ornaments: ${pct(totals.flawed[0]!, totals.flawed[1]!)} of the notes that belong to the score (goal ≥ 99.8%)\n`);
@@ -141,5 +144,8 @@ export function benchScore(names: readonly string[] = scoreNames()): void {
   process.stdout.write(`following a repeat taken: median ${percentile(rp, 0.5)} notes, p95 ${percentile(rp, 0.95)} (${rp.length} repeats)\n`);
   process.stdout.write(`per-note cost of ScoreSpeller.spell (follower + follow fallback), all movements: p50 ${percentile(c, 0.5).toFixed(1)} µs, p99 ${percentile(c, 0.99).toFixed(1)} µs, max ${(c[c.length - 1] ?? 0).toFixed(0)} µs\n`);
   process.stdout.write(`  (wall-clock time per call, preemption included: this machine's load average was ${loadavg()[0]!.toFixed(1)} at the end)\n`);
-  process.stdout.write(`  largest movement ${largest.name} (${largest.notes} notes played): p50 ${percentile(big, 0.5).toFixed(1)} µs, p99 ${percentile(big, 0.99).toFixed(1)} µs (goal p99 < 50 µs)\n`);
+  process.stdout.write(
+    `  ${nearest.name} (${nearest.notes} notes played, flawed): one run p50 ${percentile(single, 0.5).toFixed(1)} µs, p99 ${percentile(single, 0.99).toFixed(1)} µs; ` +
+      `each note's least of five runs p50 ${percentile(least, 0.5).toFixed(1)} µs, p99 ${percentile(least, 0.99).toFixed(1)} µs, max ${(least[least.length - 1] ?? 0).toFixed(1)} µs (goal p99 < 50 µs)\n`,
+  );
 }

@@ -253,6 +253,7 @@ export class ScoreFollower {
 
   /** Hears one played note (key, time in ms) and places it. */
   hear(key: number, time: number): FollowResult {
+    if (this.score.groups.length === 0) return { kind: 'fallback', group: -1, measure: -1, pitch: undefined };
     this.recentKeys.unshift(key);
     if (this.recentKeys.length > this.p.window) this.recentKeys.length = this.p.window;
     const next = this.step(key, time);
