@@ -23,6 +23,8 @@ export interface PerformanceOptions {
   /** Onset jitter of each chord (ms, ±) and how far its notes spread (ms, up to). */
   readonly jitterMs: number;
   readonly spreadMs: number;
+  /** The left hand (notes below middle C) early or late against the right by up to this many ms, chord by chord. */
+  readonly handsApartMs: number;
   /** Rates per written note. */
   readonly wrong: number;
   readonly extra: number;
@@ -41,6 +43,7 @@ export const CLEAN: PerformanceOptions = {
   rubato: 0.05,
   jitterMs: 8,
   spreadMs: 30,
+  handsApartMs: 0,
   wrong: 0,
   extra: 0,
   dropped: 0,
@@ -118,12 +121,13 @@ export function perform(score: Score, options: PerformanceOptions): PlayedNote[]
       quarters += dq;
       const onset = clock + options.jitterMs * (2 * rand() - 1);
       const spread = options.spreadMs * rand();
+      const apart = options.handsApartMs * (2 * rand() - 1);
       const arpeggio = group.keys.length > 2 && rand() < options.ornament;
       const order = [...group.notes.filter((n, i, all) => all.findIndex((o) => o.key === n.key) === i)].sort((a, b) => (arpeggio ? a.key - b.key : rand() - 0.5));
       // grace groups sound just before their main note: pull them earlier
       const shift = group.optional && group.notes.every((n) => n.grace) ? -60 : 0;
       order.forEach((n, i) => {
-        let time = onset + shift + (arpeggio ? i * 40 : (spread * i) / Math.max(1, order.length - 1));
+        let time = onset + shift + (arpeggio ? i * 40 : (spread * i) / Math.max(1, order.length - 1)) + (n.key < 60 ? apart : 0);
         const mark = jump;
         jump = undefined;
         if (rand() < options.dropped) return;

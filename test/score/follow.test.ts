@@ -91,6 +91,12 @@ describe('following made performances (bench/score-performance.ts)', () => {
     }
   });
 
+  it('loose playing: hands up to 150 ms apart, strong rubato at a fast tempo, 5 % of the notes left out', () => {
+    const score = load('sonata16-2');
+    const figures = followPerformance(score, perform(score, { ...FLAWED, handsApartMs: 150, msPerQuarter: 300, rubato: 0.2, tempoCurve: 0.3, dropped: 0.05 }));
+    expect(figures.correct / figures.written).toBeGreaterThanOrEqual(0.998);
+  });
+
   it('re-locates after restarts at other bars and follows the repeats taken', () => {
     const score = load('sonata04-2');
     const notes = perform(score, JUMPY);
