@@ -110,9 +110,10 @@ function popcount(n: number): number {
  * advance that comes far sooner than the tempo heard so far allows is penalised (so a trill or an
  * arpeggio does not run ahead through the score).
  *
- * When the recent notes fit the place poorly the whole score is searched for the place where the
- * last few notes fit best (a restart at another bar); when nothing fits the follower declares
- * itself lost and searches on with every note until it finds its place again.
+ * When the recent notes fit the place poorly the whole score is searched for places where the
+ * newest notes are a tight run of written notes (a restart at another bar); when eight notes in a
+ * row fit nowhere near, the follower declares itself lost and searches on with every note until it
+ * finds its place again.
  */
 export class ScoreFollower {
   private states: State[] = [];
@@ -125,6 +126,7 @@ export class ScoreFollower {
   private lost = false;
   private tempo = 0; // ms per quarter note, 0 until heard
   private tempoSamples = 0;
+  private lastAdvance = { group: -1, time: 0 };
   private lastGroup = -1;
   /** Where a control put the player, shown until the next note (−1: the start, nothing shown). */
   private cue = -1;
@@ -259,8 +261,8 @@ export class ScoreFollower {
     const next = this.step(key, time);
     const best = next[0]!;
     this.states = next;
-    // search elsewhere when the newest note fits poorly and the recent ones do too: two of them far
-    // from the written notes, or three of them at all (an ornament near the place is no reason)
+    // search elsewhere when the newest note fits poorly and so do recent ones: one of the last four
+    // far from the written notes, or three of them at all (ornaments near the place are no reason)
     const recentPoor = popcount(best.history & 0x0f);
     const recentStray = popcount(best.stray & 0x0f);
     if (this.lost || ((best.history & 1) === 1 && (recentStray >= 1 || recentPoor >= 3))) {
@@ -283,8 +285,7 @@ export class ScoreFollower {
     return { kind, group, measure: g.measure, pitch: written ?? impliedSpelling(this.score, Math.max(0, group), key) };
   }
 
-  private lastAdvance = { group: -1, time: 0 };
-
+  /** Learns the player's tempo (ms per quarter note) from advances to the next group. */
   private learnTempo(best: State, time: number): void {
     if (best.matched !== best.group || best.enteredAt !== time) return;
     const from = this.lastAdvance;
