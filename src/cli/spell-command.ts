@@ -8,7 +8,7 @@ import { DEFAULT_WOLF_LIMITS } from '../tuning/index.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import type { CommandIo } from './io.js';
 import { readInputFile } from '../util/files.js';
-import { matchSummary, scoreSpellerOf } from '../score/with-score.js';
+import { matchOf, matchSummary, scoreSpellerOf } from '../score/with-score.js';
 import { describeSetup } from './render-command.js';
 import { makeStyle, wantsColour } from './style.js';
 import { renderTable, signed } from './table.js';
@@ -36,7 +36,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
       ...engine,
       observer: (e) => {
         if (e.type === 'note') {
-          const m = score?.lastMatches().find((r) => r.key === e.inKey && r.channel === e.inChannel && r.source === e.source);
+          const m = matchOf(speller, e.source, e.inChannel, e.inKey);
           report.note(e, tick, m && { bar: m.bar, match: m.match });
         } else if (e.type === 'key-up') report.noteOff(e.source, e.inChannel, e.inKey);
       },

@@ -5,7 +5,7 @@ import type { ControlledSpeller } from '../spelling/controlled.js';
 import type { Style } from '../cli/style.js';
 import { signed } from '../cli/table.js';
 import type { BridgeNotice } from './bridge.js';
-import { scoreStatus } from '../score/with-score.js';
+import { matchOf, scoreStatus } from '../score/with-score.js';
 
 interface Sounding {
   readonly pitch: SpelledPitch;
@@ -58,7 +58,8 @@ export class LiveView {
   /** The line to print for an event when there is no screen to redraw. */
   line(e: RouterEvent): string | undefined {
     if (e.type === 'note') {
-      return `${this.note(e.pitch).padEnd(5)} key ${String(e.inKey).padStart(3)}  ${signed(e.cents, 2, this.names.accidentals === 'ascii').padStart(8)} c  ${e.hz.toFixed(2).padStart(8)} Hz  → ch ${e.placement.channel + 1} key ${e.placement.key}`;
+      const m = matchOf(this.sources.speller, e.source, e.inChannel, e.inKey);
+      return `${this.note(e.pitch).padEnd(5)} key ${String(e.inKey).padStart(3)}  ${signed(e.cents, 2, this.names.accidentals === 'ascii').padStart(8)} c  ${e.hz.toFixed(2).padStart(8)} Hz  → ch ${e.placement.channel + 1} key ${e.placement.key}${m ? `  bar ${m.bar ?? '-'} ${m.match}` : ''}`;
     }
     const warning = this.warningOf(e);
     return warning && this.style.yellow(`! ${warning}`);

@@ -1,6 +1,6 @@
 import type { Speller } from '../spelling/speller.js';
 import { readScoreFile } from './read-score.js';
-import { ScoreSpeller, type MatchCounts } from './score-speller.js';
+import { ScoreSpeller, type MatchCounts, type NoteMatch } from './score-speller.js';
 
 /**
  * The one place the command line and setups attach a score: reads the MusicXML file and wraps the
@@ -30,4 +30,9 @@ export function scoreStatus(speller: Speller): string | undefined {
 export function matchSummary(counts: MatchCounts): string {
   const total = counts.score + counts.ornament + counts.fallback;
   return `${counts.score} matched to the score, ${counts.ornament} spelled from it (ornaments, extra or wrong notes), ${counts.fallback} by the fallback strategy while lost (of ${total})`;
+}
+
+/** The match of a note just spelled (by input source, channel and key), when a score is in use. */
+export function matchOf(speller: Speller, source: number, channel: number, key: number): NoteMatch | undefined {
+  return scoreSpellerOf(speller)?.lastMatches().find((m) => m.key === key && m.channel === channel && m.source === source);
 }
