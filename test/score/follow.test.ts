@@ -214,3 +214,29 @@ describe('repeats taken or not (fixture: a repeat with two endings, a segno, a f
     expect(records.map((r) => r.bar)).toEqual(['1', '1', '2', '2', '4', '4', '5', '5', '6', '6']);
   });
 });
+
+describe('grace notes and unprinted ornament notes may be played or left out (fixture: features)', () => {
+  const score = readScoreFile(join(FIXTURES, 'features.musicxml'));
+  const keysOf = (groups: readonly number[]): Array<{ key: number; time: number }> =>
+    groups.flatMap((g, i) => score.groups[g]!.keys.map((key, j) => ({ key, time: 300 * i + 5 * j })));
+
+  it('played as written: every note matched, with its written spelling', () => {
+    const records = play(new ScoreSpeller(score, new WindowSpeller()), keysOf([0, 1, 2, 3, 4, 5, 6, 7, 8]));
+    expect(records.every((r) => r.match === 'score')).toBe(true);
+    expect(records.map((r) => formatSpelledPitch(r.pitch, ascii))).toEqual(['G2', 'G4', 'B4', 'A4', 'F5', 'F5', 'D3', 'D5', 'E4', 'A4', 'G4', 'Bb4']);
+  });
+
+  it('left out: the grace note and the unprinted notes cost nothing, the rest is matched', () => {
+    const records = play(new ScoreSpeller(score, new WindowSpeller()), keysOf([0, 2, 3, 4, 5, 8]));
+    expect(records.every((r) => r.match === 'score')).toBe(true);
+    expect(records.at(-1)!.bar).toBe('2');
+  });
+
+  it('played otherwise: a different ornament in their place is spelled from the score', () => {
+    // instead of the written-out A4 G4, a turn B-flat4 A4 G4 A4: B-flat from the F major key signature of measure 2
+    const turn = [70, 69, 67, 69].map((key, i) => ({ key, time: 1500 + 60 * i }));
+    const records = play(new ScoreSpeller(score, new WindowSpeller()), [...keysOf([0, 1, 2, 3, 4, 5]), ...turn, { key: 70, time: 1900 }]);
+    expect(records.slice(-5).map((r) => formatSpelledPitch(r.pitch, ascii))).toEqual(['Bb4', 'A4', 'G4', 'A4', 'Bb4']);
+    expect(records.at(-1)!.match).toBe('score');
+  });
+});
