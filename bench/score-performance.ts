@@ -6,7 +6,8 @@
 //   wrong     a written note played a key or two off (it is not the written note)
 //   extra     a note the score does not have, added beside a written one
 //   dropped   a written note left out
-//   ornament  an unwritten trill, mordent or appoggiatura before a written note, or a chord arpeggiated
+//   ornament  an unwritten trill, mordent or appoggiatura before a written note, a trill through the
+//             note's whole length, or a chord arpeggiated
 // Every played note carries what it truly is: a written note (its group and written spelling), or
 // not one of the score's notes. Deterministic for a seed.
 import type { SpelledPitch } from '../src/pitch/index.js';
@@ -135,7 +136,18 @@ export function perform(score: Score, options: PerformanceOptions): PlayedNote[]
           // an unwritten ornament before the note: trill (from above), mordent, or appoggiatura
           const up = n.key + (rand() < 0.5 ? 1 : 2);
           const down = n.key - (rand() < 0.5 ? 1 : 2);
-          const kind = pick(['trill', 'mordent', 'appoggiatura'] as const);
+          const kind = pick(['trill', 'mordent', 'appoggiatura', 'long trill'] as const);
+          if (kind === 'long trill') {
+            // on the beat from the upper note, then the note and its upper neighbour in turn, through the written length
+            const next = score.groups[g + 1];
+            const length = next && next.measure === group.measure ? (next.time - group.time) * tempo : 0;
+            const count = Math.max(2, Math.floor(length / 65));
+            for (let j = 0; j < count; j++) {
+              const main = j % 2 === 1;
+              notes.push(main && j === 1 ? { time: time + j * 65, key: n.key, group: g, written: n.pitch } : { time: time + j * 65, key: main ? n.key : up, group: undefined, written: undefined, jump: j === 0 ? mark : undefined });
+            }
+            return;
+          }
           const figure = kind === 'trill' ? [up, n.key, up, n.key, up] : kind === 'mordent' ? [n.key, down] : [up];
           const step = kind === 'trill' ? 55 : 70;
           figure.forEach((k, j) => notes.push({ time: time + j * step, key: k, group: undefined, written: undefined, jump: j === 0 ? mark : undefined }));
