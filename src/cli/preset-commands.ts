@@ -1,8 +1,9 @@
 import type { Command } from 'commander';
 import { existsSync, readFileSync } from 'node:fs';
-import { relative } from 'node:path';
+import { dirname, relative, resolve } from 'node:path';
 import { formatProblem, parseJsonText } from '../presets/problems.js';
 import { checkSetup } from '../presets/setup-file.js';
+import { readScoreFile } from '../score/read-score.js';
 import { checkTuningPreset, loadBuiltInTuningPresets, PRESETS_DIR } from '../presets/tuning-presets.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from './io.js';
@@ -52,7 +53,9 @@ export function registerPresetCommands(program: Command, io: CommandIo): void {
       const check = isTuning ? checkTuningPreset(text, file) : checkSetup(text, file);
       const ok = 'preset' in check ? check.preset && `${check.preset.name} (${check.preset.kind})` : check.setup && `setup${check.setup.json.name ? ` "${check.setup.json.name}"` : ''}`;
       if (ok) {
-        io.stdout.write(`${file}: ok: ${ok}\n`);
+        const scoreFile = 'setup' in check ? check.setup?.json.score : undefined;
+        const score = scoreFile === undefined ? undefined : readScoreFile(resolve(dirname(file), scoreFile)); // a bad score is one line naming it
+        io.stdout.write(`${file}: ok: ${ok}${score ? `, score ${scoreFile} (${score.measures.length} measures, ${score.groups.reduce((n, g) => n + g.notes.length, 0)} notes)` : ''}\n`);
         return;
       }
       for (const problem of check.problems) io.stderr.write(formatProblem(file, problem) + '\n');

@@ -88,3 +88,18 @@ describe('the stage display line', () => {
     expect(scoreStatus(speller)).toMatch(/^score {2}LOST/u);
   });
 });
+
+describe('diesis check on a setup with a score', () => {
+  it('reads the score too: ok with its size, or one line naming what is wrong', async () => {
+    const dir = tempDir();
+    writeFileSync(join(dir, 'piece.mxl'), readFileSync(score));
+    writeFileSync(join(dir, 'setup.json'), JSON.stringify({ score: 'piece.mxl' }));
+    const ok = await runCli('check', join(dir, 'setup.json'));
+    expect(ok.code).toBe(0);
+    expect(ok.stdout).toMatch(/ok: setup, score piece\.mxl \(77 measures, 1231 notes\)/u); // 1231 onsets: corpus/mozart/sonata01-2.csv
+    writeFileSync(join(dir, 'bad.json'), JSON.stringify({ score: 'missing.musicxml' }));
+    const bad = await runCli('check', join(dir, 'bad.json'));
+    expect(bad.code).toBe(1);
+    expect(bad.stderr).toMatch(/missing\.musicxml: no such file/u);
+  });
+});
