@@ -152,9 +152,14 @@ export class ScoreFollower {
     this.placeBefore(0);
   }
 
-  /** Go to the first measure numbered `number` (the `score-bar N` control); false when there is none. */
+  /**
+   * Go to the measure numbered `number` (the `score-bar N` control): the first one ahead of the
+   * current place when a score repeats a number (pick-ups are often all "0"), else the first;
+   * false when there is none.
+   */
   goToBar(number: string): boolean {
-    const measure = this.score.measures.find((m) => m.number === number && m.endGroup > m.firstGroup);
+    const named = this.score.measures.filter((m) => m.number === number && m.endGroup > m.firstGroup);
+    const measure = named.find((m) => m.firstGroup > this.lastGroup) ?? named[0];
     if (!measure) return false;
     this.placeBefore(measure.firstGroup);
     return true;
