@@ -240,3 +240,20 @@ describe('grace notes and unprinted ornament notes may be played or left out (fi
     expect(records.at(-1)!.match).toBe('score');
   });
 });
+
+describe('score-bar N when the score repeats a measure number', () => {
+  it('goes to the one ahead of the player, else the first', async () => {
+    const { readMusicXml } = await import('../../src/score/musicxml.js');
+    const note = (step: string): string => `<note><pitch><step>${step}</step><octave>4</octave></pitch><duration>1</duration></note>`;
+    const measures = [['0', 'C'], ['1', 'D'], ['0', 'E'], ['1', 'F']].map(([n, step], i) => `<measure number="${n}">${i === 0 ? '<attributes><divisions>1</divisions></attributes>' : ''}${note(step!)}${note(step!)}</measure>`);
+    const score = readMusicXml(new TextEncoder().encode(`<score-partwise><part-list/><part id="P1">${measures.join('')}</part></score-partwise>`), 'bars.musicxml');
+    const speller = new ScoreSpeller(score, new WindowSpeller());
+    expect(speller.goToBar(0)).toBe(true);
+    expect(play(speller, [{ key: 60, time: 0 }])[0]!.match).toBe('score'); // C4, in the first "0"
+    play(speller, [{ key: 60, time: 100 }, { key: 62, time: 200 }]);
+    expect(speller.goToBar('0')).toBe(true);
+    const [e] = play(speller, [{ key: 64, time: 300 }]); // E4: the second "0", ahead
+    expect([e!.match, e!.bar]).toEqual(['score', '0']);
+    expect(speller.follower.group).toBe(4);
+  });
+});
