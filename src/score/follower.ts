@@ -241,9 +241,12 @@ export class ScoreFollower {
     return reach;
   }
 
-  /** Within two keys, or octaves, of a written note of this group or the next (a neighbour note: trill, mordent, appoggiatura, a wrong key, a doubling). */
+  /**
+   * Within two keys, or octaves, of a written note of this group, the one before or the next: a
+   * neighbour note (trill, mordent, appoggiatura), a wrong key, a doubling, a tremolo's other note.
+   */
   private isNear(group: number, key: number): boolean {
-    for (let g = Math.max(0, group); g <= group + 1; g++) {
+    for (let g = Math.max(0, group - 1); g <= group + 1; g++) {
       const keys = this.score.groups[g]?.keys;
       if (keys) for (const k of keys) if ((k - key <= 2 && key - k <= 2) || (k - key) % 12 === 0) return true;
     }
