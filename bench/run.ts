@@ -7,6 +7,7 @@ import { benchFuzz } from './fuzz.js';
 import { benchLatency, benchSoak } from './live.js';
 import { benchRender } from './render.js';
 import { benchRouter } from './router.js';
+import { benchScore } from './score.js';
 import { benchSpelling } from './spelling.js';
 import { benchTuning } from './tuning.js';
 
@@ -18,6 +19,7 @@ if (!soakOnly) {
   benchRouter();
   benchSpelling();
   benchAdaptive();
+  benchScore();
   benchAudio();
   await benchRender();
   await benchLatency();

@@ -1,4 +1,6 @@
 import { Option, type Command } from 'commander';
+import { readScoreFile } from '../presets/score-file.js';
+import { ScoreSpeller } from '../score/score-speller.js';
 import { checkSetPlays, loadSampleSet, type LoadedSampleSet } from '../audio/sample-set.js';
 import { formatRange, parseWindow } from '../pitch/index.js';
 import { loadSetupFile, type SetupFile } from '../presets/setup-file.js';
@@ -41,6 +43,7 @@ export interface EngineCliOptions {
   mtsProgram?: number;
   octaveForm?: string;
   sampleSet?: string;
+  score?: string;
 }
 
 export function addEngineOptions(command: Command): Command {
@@ -63,6 +66,7 @@ export function addEngineOptions(command: Command): Command {
     .option('--mts-device <id>', 'MTS device ID, 127 = all (default: 127)', integerOption('--mts-device', 0, 127))
     .option('--mts-program <n>', 'MTS tuning program addressed (default: 0)', integerOption('--mts-program', 0, 127))
     .addOption(new Option('--octave-form <bytes>', 'mts-octave: 1-byte (cents) or 2-byte (fine) messages (default: 2)').choices(['1', '2']))
+    .option('--score <file>', 'follow the piece in its MusicXML score (.musicxml, .xml, .mxl) and spell each note as written')
     .option('--sample-set <dir>', 'play a retuned sample set made by "diesis samples": --mode samples, its channel layout, no bends');
 }
 
@@ -127,7 +131,10 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const key = cli.key !== undefined ? parseKey(cli.key, '--key') : setup?.key;
   if (strategy === 'key' && key === undefined) throw new UserError('--spelling key needs --key, as in --key "D minor"', 2);
   const window = cli.window !== undefined ? parseWindow(cli.window, '--window') : setup?.window;
-  const speller = new ControlledSpeller(createStrategy({ strategy, window, key, follow: json?.spelling?.follow }), setup?.splits ?? [], key);
+  // A score given here is read now; a setup's was read (from the setup's folder) when it was checked.
+  const score = cli.score !== undefined ? readScoreFile(cli.score) : setup?.score;
+  const base = createStrategy({ strategy, window, key, follow: json?.spelling?.follow });
+  const speller = new ControlledSpeller(score === undefined ? base : new ScoreSpeller(score, base), setup?.splits ?? [], key);
   if (isAdaptive(preset.tuning) && (mode === 'mts-octave' || mode === 'samples')) {
     throw new UserError(`${preset.id} gives every note its own pitch: use --mode bend or mts-note (--mode ${mode} tunes key classes or fixed samples, so held notes would move)`, 2);
   }

@@ -50,7 +50,9 @@ export function registerPresetCommands(program: Command, io: CommandIo): void {
       for (const problem of check.problems) io.stderr.write(formatProblem(file, problem, check.source) + '\n');
       const ok = 'preset' in check ? check.preset && `${check.preset.name} (${check.preset.kind})` : check.setup && `setup${check.setup.json.name ? ` "${check.setup.json.name}"` : ''}`;
       if (ok) {
-        io.stdout.write(`${file}: ok: ${ok}\n`);
+        const score = 'setup' in check ? check.setup?.score : undefined;
+        const scoreText = score && 'setup' in check ? `, score ${check.setup?.json.score} (${score.measures.length} measures, ${score.groups.reduce((n, g) => n + g.notes.length, 0)} notes)` : '';
+        io.stdout.write(`${file}: ok: ${ok}${scoreText}\n`);
         return;
       }
       const count = check.problems.filter((p) => !p.warning).length;

@@ -13,6 +13,7 @@ import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './eng
 import { readInputFile, runWithOutputs } from '../util/files.js';
 import { engineInputFiles } from './command-files.js';
 import type { CommandIo } from '../util/io.js';
+import { matchSummary, scoreSpellerOf } from '../score/score-status.js';
 
 export function summaryText(summary: RenderSummary, header: string): string {
   const rows: Array<[string, string]> = [
@@ -58,7 +59,7 @@ export function registerRender(program: Command, io: CommandIo): void {
   addEngineOptions(command).action((input: string, cli: RenderOptions) => {
     if (!cli.output && !cli.wav) throw new UserError('render needs -o OUT.mid or --wav OUT.wav, the file to write', 2);
     const resolved = resolveEngineCli(cli);
-    const { preset, options, sampleSet, spellingLabel } = resolved;
+    const { preset, options, sampleSet, spellingLabel, speller } = resolved;
     const engine = createEngine({ ...options, gather: options.gather ?? 'same-time' }); // in a file, equal onsets are a chord
     // Every output is checked before the work and written only when all of it has succeeded.
     const summary = runWithOutputs([input, ...engineInputFiles(resolved)], (outputs) => {
@@ -85,5 +86,7 @@ export function registerRender(program: Command, io: CommandIo): void {
     const setup = describeSetup(preset.name, engine.options);
     const written = [cli.output, cli.wav].filter(Boolean).join(' and ');
     io.stdout.write(summaryText(summary, `${input} → ${written}: ${setup}, spelling ${spellingLabel}`));
+    const score = scoreSpellerOf(speller);
+    if (score) io.stdout.write(`  ${'score'.padEnd(16)}${matchSummary(score.counts)}\n`);
   });
 }

@@ -4,10 +4,12 @@ import { renderEvents } from '../render/render-midi.js';
 import { readMidiFile } from '../render/smf.js';
 import { SpellReport } from '../render/spell-report.js';
 import { createEngine } from '../router/setup.js';
+import { channelOf, keyOfNote, sourceOf } from '../router/note-id.js';
 import { DEFAULT_WOLF_LIMITS } from '../tuning/index.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import type { CommandIo } from '../util/io.js';
 import { readInputFile } from '../util/files.js';
+import { matchOf, matchSummary, scoreSpellerOf } from '../score/score-status.js';
 import { describeSetup } from './render-command.js';
 import { makeStyle, wantsColour } from '../text/style.js';
 import { renderTable, signed } from '../text/table.js';
@@ -25,7 +27,8 @@ export function registerSpell(program: Command, io: CommandIo): void {
     .option('--json', 'JSON Lines, one object per note-on in file order (fields in the README)')
     .option('--ascii', 'write # and b instead of ♯ and ♭');
   addEngineOptions(command).action((input: string, cli: SpellOptions) => {
-    const { preset, options, spellingLabel } = resolveEngineCli(cli);
+    const { preset, options, spellingLabel, speller } = resolveEngineCli(cli);
+    const score = scoreSpellerOf(speller);
     const content = readMidiFile(readInputFile(input), input);
     let tick = 0;
     const report = new SpellReport(DEFAULT_WOLF_LIMITS);
@@ -33,8 +36,10 @@ export function registerSpell(program: Command, io: CommandIo): void {
       ...options,
       gather: options.gather ?? 'same-time',
       observer: (e) => {
-        if (e.type === 'note') report.note(e, tick);
-        else if (e.type === 'key-up') report.noteOff(e.id);
+        if (e.type === 'note') {
+          const m = matchOf(speller, sourceOf(e.id), channelOf(e.id), keyOfNote(e.id));
+          report.note(e, tick, m && { bar: m.bar, match: m.match });
+        } else if (e.type === 'key-up') report.noteOff(e.id);
       },
     });
     renderEvents(content, engine, (t) => (tick = t));
@@ -44,7 +49,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
     }
     const names = { accidentals: cli.ascii ? ('ascii' as const) : ('unicode' as const) };
     const style = makeStyle(wantsColour(io.stdout));
-    io.stdout.write(style.bold(`${input}: ${describeSetup(preset.name, engine.options)}, spelling ${spellingLabel}`) + '\n');
+    io.stdout.write(style.bold(`${input}: ${describeSetup(preset.name, engine.options)}, spelling ${score ? `from the score, else ${spellingLabel}` : spellingLabel}`) + '\n');
     const adaptive = report.rows.some((r) => r.fromTable !== undefined);
     const columns = [
       { header: 'time', align: 'right' as const },
@@ -55,6 +60,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
       { header: 'Hz', align: 'right' as const },
       { header: 'cents', align: 'right' as const },
       ...(adaptive ? [{ header: 'from table', align: 'right' as const }] : []),
+      ...(score ? [{ header: 'bar', align: 'right' as const }, { header: 'match', align: 'left' as const }] : []),
     ];
     const rows = report.rows.map((r) => [
       r.time.toFixed(3),
@@ -65,6 +71,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
       r.hz.toFixed(3),
       signed(r.cents, 2, cli.ascii),
       ...(adaptive ? [signed(r.fromTable ?? 0, 2, cli.ascii)] : []),
+      ...(score ? [r.score?.bar ?? '-', r.score?.match ?? ''] : []),
     ]);
     io.stdout.write(renderTable(columns, rows, style.bold) + '\n\n');
     const { tally } = engine;
@@ -74,6 +81,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
       tally.outOfRange ? `${tally.outOfRange} beyond what the output can tune` : '',
       tally.compromises ? `${tally.compromises} placed at a compromise pitch` : '',
     ].filter(Boolean);
-    io.stdout.write(`${report.rows.length} notes${extra.length ? `; ${extra.join('; ')}` : ''}\n` + report.summaryText(names));
+    const matched = score ? `: ${matchSummary(score.counts)}` : '';
+    io.stdout.write(`${report.rows.length} notes${matched}${extra.length ? `; ${extra.join('; ')}` : ''}\n` + report.summaryText(names));
   });
 }

@@ -1,13 +1,14 @@
 import { formatRange, formatSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
 import type { RouterEvent } from '../router/events.js';
 import type { NoteId } from '../router/note-id.js';
-import { keyOfNote } from '../router/note-id.js';
+import { channelOf, keyOfNote, sourceOf } from '../router/note-id.js';
 import type { Tally } from '../router/tally.js';
 import type { ControlledSpeller } from '../spelling/controlled.js';
 import { formatChannels } from '../text/channels.js';
 import type { Style } from '../text/style.js';
 import { signed } from '../text/table.js';
 import type { BridgeNotice } from './bridge.js';
+import { matchOf, scoreStatus } from '../score/score-status.js';
 
 interface Sounding {
   readonly pitch: SpelledPitch;
@@ -92,7 +93,8 @@ export class LiveView {
   line(e: RouterEvent): string | undefined {
     if (e.type === 'note') {
       const instead = e.wanted ? `  (the set has no ${this.note(e.wanted)})` : '';
-      return `${this.note(e.pitch).padEnd(5)} key ${String(keyOfNote(e.id)).padStart(3)}  ${signed(e.cents, 2, this.names.accidentals === 'ascii').padStart(8)} c  ${e.hz.toFixed(2).padStart(8)} Hz  → ch ${e.placement.channel + 1} key ${e.placement.key}${instead}`;
+      const m = matchOf(this.sources.speller, sourceOf(e.id), channelOf(e.id), keyOfNote(e.id));
+      return `${this.note(e.pitch).padEnd(5)} key ${String(keyOfNote(e.id)).padStart(3)}  ${signed(e.cents, 2, this.names.accidentals === 'ascii').padStart(8)} c  ${e.hz.toFixed(2).padStart(8)} Hz  → ch ${e.placement.channel + 1} key ${e.placement.key}${instead}${m ? `  bar ${m.bar ?? '-'} ${m.match}` : ''}`;
     }
     const warning = this.warningOf(e);
     return warning && this.style.yellow(`! ${warning}`);
@@ -136,6 +138,8 @@ export class LiveView {
     lines.push(s.bold(title));
     const window = formatRange(speller.currentWindow(), this.names);
     lines.push(`spelling ${s.bold(strategy)}  window ${s.bold(window)}${o.shift ? `  shift ${o.shift > 0 ? '+' : ''}${o.shift}` : ''}${this.passing ? s.yellow('  12-ET PASS') : ''}`);
+    const following = scoreStatus(speller);
+    if (following) lines.push(following.includes('LOST') ? s.yellow(following) : following);
     lines.push(`pedals ${on(this.sustain, 'sustain')} ${on(this.sostenuto, 'sostenuto')}   latches ${on(o.flip, 'flip')} ${on(o.force === 'sharps', 'sharps')} ${on(o.force === 'flats', 'flats')} ${on(o.frozen, 'freeze')}`);
     lines.push(`from ${ports.inputs.map(port).join(', ')}  to ${port(ports.output)}`);
     lines.push('');

@@ -13,6 +13,8 @@ import { parseJsonSource, type JsonSource } from './json-source.js';
 import { collecting, throwProblems, zodProblems, type Problem } from './problems.js';
 import { controlSchema, setupSchema, splitKeySchema, type ControlJson, type SetupJson, type SplitKeyJson } from './setup-schema.js';
 import { loadTuningPreset, type TuningPreset } from './tuning-presets.js';
+import { readScoreFile } from './score-file.js';
+import type { Score } from '../score/score.js';
 
 /** A validated setup file: its JSON, with everything in it parsed and loaded as `play` uses it. */
 export interface SetupFile {
@@ -26,6 +28,8 @@ export interface SetupFile {
   readonly key: DeclaredKey | undefined;
   readonly bindings: readonly Binding[];
   readonly splits: readonly SplitKey[];
+  /** The score to follow, read from the setup's folder. */
+  readonly score: Score | undefined;
 }
 
 export interface SetupCheck {
@@ -220,7 +224,8 @@ function semanticChecks(json: SetupJson, file: string, problems: Problem[]): Omi
   const placed = bindingsOf(json.controls ?? [], problems, (i) => `$.controls[${i}]`);
   bindingConflicts(placed, problems);
   const splits = splitsOf(json, problems);
-  return { tuning, reference, channels, window, key, bindings: placed.map((p) => p.binding), splits };
+  const score = json.score === undefined ? undefined : collecting(problems, '$.score', () => readScoreFile(setupPath(file, json.score!)));
+  return { tuning, reference, channels, window, key, bindings: placed.map((p) => p.binding), splits, score };
 }
 
 /** The parts of an invalid setup that are valid on their own (each block, each control), to check them too. */
@@ -235,6 +240,7 @@ function salvage(value: unknown): SetupJson | undefined {
   return {
     tuning: part(shape.tuning, raw.tuning),
     reference: part(shape.reference, raw.reference),
+    score: part(shape.score, raw.score),
     output: part(shape.output, raw.output),
     spelling: part(shape.spelling, raw.spelling),
     // Invalid entries stay as holes, so the valid ones keep their index (and their line).

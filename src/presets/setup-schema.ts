@@ -47,6 +47,8 @@ export const setupSchema = z.strictObject({
   description: z.string().optional(),
   tuning: z.string().optional(),
   reference: z.string().optional(),
+  /** A MusicXML score to follow (.musicxml, .xml, .mxl), relative to the setup file's folder. */
+  score: z.string().optional(),
   spelling: z
     .strictObject({
       strategy: z.enum(STRATEGIES).optional(),

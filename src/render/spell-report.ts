@@ -19,6 +19,8 @@ export interface SpellRow {
   readonly cents: number;
   /** Adaptive tunings: cents from the same spelling in the fixed table. */
   readonly fromTable: number | undefined;
+  /** With a score: the measure number (null while lost) and how the note was placed. */
+  readonly score?: { readonly bar: string | null; readonly match: string } | undefined;
 }
 
 /** The intervals the wolf list watches, by keys apart (octaves folded), with their pure ratios (common practice, no source). */
@@ -62,7 +64,7 @@ export class SpellReport {
 
   constructor(private readonly limits: WolfLimits) {}
 
-  note(event: NoteEvent, tick: number): void {
+  note(event: NoteEvent, tick: number, score?: SpellRow['score']): void {
     const row: SpellRow = {
       tick,
       time: event.time / 1000,
@@ -72,6 +74,7 @@ export class SpellReport {
       hz: event.hz,
       cents: event.cents,
       fromTable: event.adaptive?.fromTable,
+      score,
     };
     for (const other of this.held.values()) this.checkPair(other, row);
     this.held.set(event.id, row);
@@ -114,7 +117,19 @@ export class SpellReport {
   /** The rows as JSON Lines (the documented fields). */
   jsonLines(): string {
     return this.rows
-      .map((r) => JSON.stringify({ tick: r.tick, time: r.time, key: r.key, channel: r.channel, spelling: formatSpelledPitch(r.pitch), hz: r.hz, cents: r.cents, ...(r.fromTable === undefined ? {} : { fromTable: r.fromTable }) }))
+      .map((r) =>
+        JSON.stringify({
+          tick: r.tick,
+          time: r.time,
+          key: r.key,
+          channel: r.channel,
+          spelling: formatSpelledPitch(r.pitch),
+          hz: r.hz,
+          cents: r.cents,
+          ...(r.fromTable === undefined ? {} : { fromTable: r.fromTable }),
+          ...(r.score && { bar: r.score.bar !== null && /^\d+$/u.test(r.score.bar) ? Number(r.score.bar) : r.score.bar, match: r.score.match }),
+        }),
+      )
       .join('\n') + (this.rows.length ? '\n' : '');
   }
 
