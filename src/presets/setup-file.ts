@@ -53,7 +53,14 @@ function setupTuning(setupFile: string, idOrPath: string): TuningPreset {
   return loadTuningPreset(looksLikePath ? setupPath(setupFile, idOrPath) : idOrPath);
 }
 
-function actionOf(name: ActionName, keyText: string | undefined, path: string, problems: Problem[]): Action | undefined {
+function actionOf(name: ActionName, keyText: string | undefined, bar: string | number | undefined, path: string, problems: Problem[]): Action | undefined {
+  if (actionEntry(name).needsBar) {
+    if (bar === undefined) {
+      problems.push({ path, message: `"${name}" needs the "bar" it goes to, such as 12` });
+      return undefined;
+    }
+    return { name, bar: String(bar) };
+  }
   if (!actionEntry(name).needsKey) return { name };
   if (keyText === undefined) {
     problems.push({ path, message: `"${name}" needs a "key", such as "D minor"` });
@@ -77,13 +84,13 @@ function bindingsOf(controls: readonly ControlJson[], problems: Problem[], at: (
     const latch = c.latch ?? false;
     if (c.zones && c.cc !== undefined) {
       c.zones.forEach((z, j) => {
-        const action = actionOf(z.action, z.key, `${path}.zones[${j}]`, problems);
+        const action = actionOf(z.action, z.key, z.bar, `${path}.zones[${j}]`, problems);
         if (action) bindings.push({ binding: { trigger: { kind: 'zone', controller: c.cc!, channel, from: z.from, to: z.to }, action, latch: z.latch ?? false }, path: `${path}.zones[${j}]` });
       });
       return;
     }
     if (!c.action) return;
-    const action = actionOf(c.action, c.key, path, problems);
+    const action = actionOf(c.action, c.key, c.bar, path, problems);
     let trigger: Trigger | undefined;
     if (c.cc !== undefined) trigger = { kind: 'cc', controller: c.cc, channel, threshold: c.threshold ?? 64 };
     else if (c.note !== undefined) trigger = { kind: 'note', key: c.note, channel, source: c.source };

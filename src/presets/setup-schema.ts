@@ -9,7 +9,8 @@ const midiValue = z.number().int().min(0).max(127);
 
 const action = z.enum(ACTION_NAMES);
 
-const zone = z.strictObject({ from: midiValue, to: midiValue, action, key: z.string().optional(), latch: z.boolean().optional() });
+const bar = z.union([z.string(), z.number().int().min(0)]);
+const zone = z.strictObject({ from: midiValue, to: midiValue, action, key: z.string().optional(), bar: bar.optional(), latch: z.boolean().optional() });
 
 /** One control: what triggers it (cc, zones, note or program) and what it does. */
 export const controlSchema = z
@@ -23,6 +24,7 @@ export const controlSchema = z
     source: z.number().int().min(0).optional(),
     action: action.optional(),
     key: z.string().optional(),
+    bar: bar.optional(),
     latch: z.boolean().optional(),
   })
   .refine((c) => [c.cc, c.note, c.program].filter((x) => x !== undefined).length === 1, { error: 'give exactly one of "cc", "note" or "program"' })

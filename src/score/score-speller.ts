@@ -97,6 +97,10 @@ export class ScoreSpeller implements Speller {
     this.follower.restart();
   }
 
+  restartScore(): void {
+    this.restart();
+  }
+
   /** The `score-bar N` control: the player is about to play measure N; false when the score has none. */
   goToBar(number: string | number): boolean {
     return this.follower.goToBar(String(number));

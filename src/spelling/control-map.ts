@@ -24,8 +24,10 @@ export interface ActionEntry {
   readonly kind: 'hold' | 'press';
   /** Needs a key (`set-key`). */
   readonly needsKey?: boolean;
+  /** Needs a bar of the score (`score-bar`). */
+  readonly needsBar?: boolean;
   /** `on`: for a hold action whether it is on now; a press action runs only on presses. */
-  run(target: ActionTarget, on: boolean, key: DeclaredKey | undefined): void;
+  run(target: ActionTarget, on: boolean, action: Action): void;
 }
 
 /**
@@ -39,7 +41,9 @@ export const ACTIONS = {
   'force-sharps': { summary: 'every black key a sharp while held', kind: 'hold', run: (t, on) => forceTo(t.speller, 'sharps', on) },
   'force-flats': { summary: 'every black key a flat while held', kind: 'hold', run: (t, on) => forceTo(t.speller, 'flats', on) },
   freeze: { summary: 'hold the spelling context still while held', kind: 'hold', run: (t, on) => t.speller.setFrozen(on) },
-  'set-key': { summary: 'jump to a declared key', kind: 'press', needsKey: true, run: (t, _on, key) => key && t.speller.setKey(key) },
+  'set-key': { summary: 'jump to a declared key', kind: 'press', needsKey: true, run: (t, _on, a) => a.key && t.speller.setKey(a.key) },
+  'score-restart': { summary: 'the score follower starts again from the first bar', kind: 'press', run: (t) => t.speller.restartScore() },
+  'score-bar': { summary: 'tell the score follower which bar the player is in', kind: 'press', needsBar: true, run: (t, _on, a) => a.bar !== undefined && t.speller.goToBar(a.bar) },
   respell: { summary: 'respell the notes sounding now', kind: 'press', run: (t) => t.engine.respell() },
   pass: { summary: "toggle the synth's own 12-ET for comparison", kind: 'press', run: (t) => t.engine.togglePass() },
   panic: { summary: 'all notes off, pedals up, bends centred', kind: 'press', run: (t) => t.engine.panic() },
@@ -57,10 +61,11 @@ function forceTo(speller: ControlledSpeller, to: 'sharps' | 'flats', on: boolean
   speller.setForce(on ? to : now === to ? undefined : now);
 }
 
-/** An action as bound: its name and, for `set-key`, the key. */
+/** An action as bound: its name and, for `set-key`, the key; for `score-bar`, the bar. */
 export interface Action {
   readonly name: ActionName;
   readonly key?: DeclaredKey | undefined;
+  readonly bar?: string | undefined;
 }
 
 /** What fires a control: a switch pedal, a zone of an expression pedal, a key switch, a program change. */
@@ -149,5 +154,5 @@ export class ControlMap {
 
 /** Runs one firing (a page button or a programme step fires the same way). */
 export function fire(firing: Firing, target: ActionTarget): void {
-  actionEntry(firing.action.name).run(target, firing.on, firing.action.key);
+  actionEntry(firing.action.name).run(target, firing.on, firing.action);
 }

@@ -116,6 +116,16 @@ export class ControlledSpeller implements Speller {
     this.base.setFrozen?.(frozen);
   }
 
+  /** The score follower (if the strategy follows a score) starts again from the beginning. */
+  restartScore(): void {
+    this.base.restartScore?.();
+  }
+
+  /** The score follower (if any) goes to a bar; false when there is no score or no such bar. */
+  goToBar(bar: string): boolean {
+    return this.base.goToBar?.(bar) ?? false;
+  }
+
   setKey(key: DeclaredKey): void {
     this.shifted = 0;
     this.declared = key;

@@ -29,6 +29,10 @@ export interface Speller {
   declaredTonic?(): PitchClass | undefined;
   /** Optional: jumps to a declared key (a control action). */
   setKey?(key: DeclaredKey): void;
+  /** Optional (a score follower): the player starts again from the beginning. */
+  restartScore?(): void;
+  /** Optional (a score follower): the player is at this bar; false when the score has no such bar. */
+  goToBar?(bar: string): boolean;
   /** Optional: while frozen the context holds still, nothing heard moves it (a strategy with no context has nothing to freeze). */
   setFrozen?(frozen: boolean): void;
 }
