@@ -85,7 +85,7 @@ export function renderEvents(
   take(lastTick, router.flush(lastTime), true);
   take(content.lastTick, router.releaseAll(lastTime), false);
   const closingTick = content.lastTick + Math.ceil(options.releaseGuardMs / content.msPerTickAtEnd);
-  take(closingTick, router.panic(lastTime + options.releaseGuardMs, 'end of file'), false);
+  take(closingTick, router.close(lastTime + options.releaseGuardMs), false);
   withTimes?.(times);
   return {
     messages,

@@ -7,6 +7,10 @@ import type { TunedNote } from './pitch-table.js';
 
 export type BendLayout = 'mpe' | 'multi';
 
+/** The bend ranges an MPE Configuration Message sets: members ±48, the master ±2 semitones (RP-053). */
+export const MPE_MEMBER_RANGE = 48;
+export const MPE_MASTER_RANGE = 2;
+
 /** `mpe`: zone-wide messages and the wheel go to the master channel; `multi`: to every member. */
 export type BendZone = { readonly layout: 'mpe'; readonly master: number } | { readonly layout: 'multi' };
 
@@ -91,12 +95,12 @@ export class BendOutput implements OutputStrategy {
     const { zone, channels, bendRange, sendBendRange, wheelRange } = this.setup;
     const emit = context.emit;
     if (sendBendRange) {
-      if (zone.layout === 'mpe') {
-        // The zone message first: receiving it resets member ranges to ±48 and the master's to ±2 (RP-053).
-        for (const m of mpeConfiguration(zone.master, channels.length)) emit(m);
-        for (const m of bendSensitivity(zone.master, wheelRange)) emit(m);
-      }
-      for (const c of channels) for (const m of bendSensitivity(c, bendRange)) emit(m);
+      // MPE: the zone message first. Receiving it sets member ranges to ±48 and the master's to ±2
+      // (RP-053), so RPN 0 follows only where the ranges wanted differ from those.
+      const mpe = zone.layout === 'mpe';
+      if (mpe) for (const m of mpeConfiguration(zone.master, channels.length)) emit(m);
+      if (mpe && wheelRange !== MPE_MASTER_RANGE) for (const m of bendSensitivity(zone.master, wheelRange)) emit(m);
+      if (!mpe || bendRange !== MPE_MEMBER_RANGE) for (const c of channels) for (const m of bendSensitivity(c, bendRange)) emit(m);
     }
     this.masterRange = wheelRange;
     if (zone.layout === 'mpe') emit(pitchBend(zone.master, BEND_CENTRE));

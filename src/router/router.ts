@@ -2,7 +2,7 @@ import { CC, channelPressure, controlChange, noteOff, noteOn, polyPressure, prog
 import { decodeMessage, type MidiMessage } from '../midi/message.js';
 import { MidiStreamParser } from '../midi/parser.js';
 import { BEND_CENTRE } from '../midi/pitch-bend.js';
-import { keyOf, spellKey, type SpelledPitch } from '../pitch/index.js';
+import { keyOf, spellKey, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import type { ControlMap, EngineActions, Firing } from '../spelling/control-map.js';
 import type { NoteContext, Speller } from '../spelling/speller.js';
 import type { AdaptedTunedNote, AdaptivePitches } from './adaptive-pitches.js';
@@ -63,6 +63,11 @@ export class Router {
   private passThrough = false;
   private sensing = false;
   private lastInput = 0;
+  /** Channels that carried notes, and whether zone-wide messages were sent (for closing a file). */
+  private readonly channelsUsed = new Set<number>();
+  private zoneUsed = false;
+  /** The speller's tonic, asked only when a just table must follow it. */
+  private readonly tonic = (): PitchClass | undefined => this.setup.speller.currentTonic();
   /** Why the output could not place the note being sounded, if it said. */
   private refusal: string | undefined;
 
@@ -100,7 +105,7 @@ export class Router {
         this.passThrough = !this.passThrough;
         observe?.({ type: 'pass', time: this.now, on: this.passThrough });
       },
-      panic: () => this.doPanic('panic control'),
+      panic: () => this.doPanic('panic control', this.everyChannel),
     };
   }
 
@@ -181,7 +186,7 @@ export class Router {
     }
     if (this.sensing && time - this.lastInput > ACTIVE_SENSING_TIMEOUT_MS) {
       this.sensing = false;
-      this.doPanic('active sensing stopped');
+      this.doPanic('active sensing stopped', this.everyChannel);
     }
     return this.done();
   }
@@ -189,7 +194,18 @@ export class Router {
   /** Ends every sounding note, lifts pedals, sends All Notes Off and centres the bends used. */
   panic(time: number, reason = 'panic'): TimedMessage[] {
     this.begin(time);
-    this.doPanic(reason);
+    this.doPanic(reason, this.everyChannel);
+    return this.done();
+  }
+
+  /**
+   * Closes a file: the panic sequence on the channels it used (notes, or zone-wide messages) only.
+   * Live, a panic covers every channel, since the synth may hold what diesis never sent.
+   */
+  close(time: number, reason = 'end of file'): TimedMessage[] {
+    this.begin(time);
+    const zone = this.zoneUsed ? this.setup.output.zoneChannels : [];
+    this.doPanic(reason, this.everyChannel.filter((c) => this.channelsUsed.has(c) || zone.includes(c)));
     return this.done();
   }
 
@@ -272,9 +288,11 @@ export class Router {
         this.controller(source, message.channel, message.controller, message.value);
         return;
       case 'program':
+        this.zoneUsed = true;
         for (const c of this.setup.output.zoneChannels) this.emit(programChange(c, message.program));
         return;
       case 'channel-pressure':
+        this.zoneUsed = true;
         for (const c of this.setup.output.zoneChannels) this.emit(channelPressure(c, message.value));
         return;
       case 'pitch-bend':
@@ -296,10 +314,14 @@ export class Router {
     for (const n of notes) if (this.book.isDown(n.id)) this.keyUp(n.id, 0); // a second note-on without its note-off: release the first
     const speller = this.setup.speller;
     const spelled = speller.spell(notes.map((n) => this.contextOf(n.id, n.velocity)));
-    const pitches = notes.map((n, i) => {
+    let pitches = spelled;
+    for (let i = 0; i < notes.length; i++) {
+      const key = keyOfNote(notes[i]!.id);
       const pitch = spelled[i];
-      return pitch === undefined || keyOf(pitch) !== keyOfNote(n.id) ? spellKey(speller.currentWindow(), keyOfNote(n.id)) : pitch; // never trust a speller blindly
-    });
+      if (pitch !== undefined && keyOf(pitch) === key) continue;
+      if (pitches === spelled) pitches = [...spelled]; // never trust a speller blindly, nor change what it returned
+      pitches[i] = spellKey(speller.currentWindow(), key);
+    }
     const adaptive = this.setup.adaptive;
     if (adaptive && !this.passThrough) {
       adaptive.setTonic(speller.declaredTonic?.());
@@ -307,20 +329,21 @@ export class Router {
       notes.forEach((n, i) => this.sound(n.id, pitches[i]!, n.velocity, tuned[i]));
       return;
     }
-    notes.forEach((n, i) => this.sound(n.id, pitches[i]!, n.velocity));
+    for (let i = 0; i < notes.length; i++) this.sound(notes[i]!.id, pitches[i]!, notes[i]!.velocity);
   }
 
   /** Tunes, places and starts one note (as the output can sound it: a sample set may lack a spelling). */
   private sound(id: NoteId, wanted: SpelledPitch, velocity: number, adapted?: AdaptedTunedNote): void {
     const output = this.setup.output;
     const pitch = output.available ? output.available(wanted) : wanted;
-    const tuned = adapted ?? this.tables.now(this.passThrough, () => this.setup.speller.currentTonic()).tune(pitch);
+    const tuned = adapted ?? this.tables.now(this.passThrough, this.tonic).tune(pitch);
     this.refusal = undefined;
     const placement = output.place(tuned, this.now, this.context);
     if (!placement) {
       this.observe?.({ type: 'note-dropped', time: this.now, id, pitch, reason: this.refusal ?? 'its tuned key lies outside 0…127' });
       return;
     }
+    this.channelsUsed.add(placement.channel);
     this.book.start({ id, pitch, velocity, placement, state: 'held', silenced: false }); // releases a voice on the same synth key first
     this.emit(noteOn(placement.channel, placement.key, velocity));
     const adaptive = adapted && { fromTable: adapted.fromTable, compromise: adapted.compromise };
@@ -344,7 +367,7 @@ export class Router {
   private respell(): void {
     const output = this.setup.output;
     const plan = planRespelling(this.book.voices(), (v) => this.setup.speller.peek(this.contextOf(v.id, v.velocity)), output.inPlace);
-    const table = this.tables.now(this.passThrough, () => this.setup.speller.currentTonic());
+    const table = this.tables.now(this.passThrough, this.tonic);
     const restrike = [...plan.restrike];
     for (const unit of plan.retune) {
       const first = unit[0]!;
@@ -359,6 +382,7 @@ export class Router {
   }
 
   private toZone(controller: number, value: number): void {
+    this.zoneUsed = true;
     for (const c of this.setup.output.zoneChannels) this.emit(controlChange(c, controller, value));
   }
 
@@ -422,11 +446,11 @@ export class Router {
     this.setup.output.wheel(BEND_CENTRE, this.keyboard.wheelRange, this.now, this.context);
   }
 
-  private doPanic(reason: string): void {
+  private doPanic(reason: string, channels: readonly number[]): void {
     this.gatherer.take();
     for (const id of this.book.clear()) this.heardKeyUp(id, 0);
     this.keyboard.wheelValue = BEND_CENTRE;
-    for (const c of this.everyChannel) {
+    for (const c of channels) {
       this.emit(controlChange(c, CC.sustain, 0));
       this.emit(controlChange(c, CC.sostenuto, 0));
       this.emit(controlChange(c, CC.soft, 0));

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
 import { setupSchema } from '../../src/presets/setup-schema.js';
-import { OUTPUT_MODE_IDS, resolveEngineOptions } from '../../src/router/setup.js';
+import { createEngine, OUTPUT_MODE_IDS, resolveEngineOptions } from '../../src/router/setup.js';
 import { ACTION_NAMES } from '../../src/spelling/control-map.js';
 import { STRATEGIES } from '../../src/spelling/strategy.js';
 import { resolveEngineCli } from '../../src/cli/engine-options.js';
@@ -85,5 +85,22 @@ describe('bend output bytes: a channel’s bend is sent when it is first used', 
     rig.model.channels[1]!.bend = 12000; // left bent by something before diesis started
     rig.on(60);
     expect(rig.worstError()).toBeLessThan(0.3);
+  });
+});
+
+describe('a file is closed on the channels it used', () => {
+  it('the closing panic ends what sounds on the channels used and leaves the others alone; live panic covers every channel', () => {
+    const { router } = createEngine({ tuning: meantone, reference: A440 });
+    router.start(0);
+    router.process(0, [0x90, 60, 90]);
+    router.process(0, [0x90, 64, 90]);
+    router.process(10, [0xb0, 64, 127]); // a pedal: a zone-wide message to the MPE master (channel 1)
+    const closing = router.close(500).map((m) => m.data);
+    const channelsOf = (messages: ReadonlyArray<readonly number[]>, controller: number) =>
+      new Set(messages.filter((d) => (d[0]! & 0xf0) === 0xb0 && d[1] === controller).map((d) => d[0]! & 0x0f));
+    // C and E take one member channel each in quarter-comma meantone, plus the master (MPE, RP-053).
+    expect(channelsOf(closing, 123).size).toBe(3);
+    expect(channelsOf(closing, 123).has(0)).toBe(true);
+    expect(channelsOf(router.panic(600).map((m) => m.data), 123).size).toBe(16);
   });
 });

@@ -29,9 +29,14 @@ describe('bend output: start-up', () => {
     expect(rig.model.channels[15]!.bendRange).toBe(48);
     expect(rig.model.channels[0]!.bendRange).toBe(2);
     expect(rig.model.channels.every((c) => c.bend === 8192)).toBe(true);
-    // The zone message comes before the ranges, which it would otherwise reset.
-    const first = rig.sent.findIndex((m) => m.data[1] === 100 && m.data[2] === 6);
-    const firstRange = rig.sent.findIndex((m) => m.data[1] === 6 && m.data[2] === 48);
+    // The zone message itself sets ±48 and ±2 (RP-053): no RPN 0 needs to follow it.
+    expect(rig.sent.filter((m) => m.data[1] === 100 && m.data[2] === 0)).toEqual([]);
+    // Other ranges follow the zone message, which would otherwise reset them.
+    const wide = new Rig({ tuning: meantone, reference: A440, bendRange: 24, wheelRange: 12 });
+    expect(wide.model.channels[1]!.bendRange).toBe(24);
+    expect(wide.model.channels[0]!.bendRange).toBe(12);
+    const first = wide.sent.findIndex((m) => m.data[1] === 100 && m.data[2] === 6);
+    const firstRange = wide.sent.findIndex((m) => m.data[1] === 6 && m.data[2] === 24);
     expect(first).toBeGreaterThanOrEqual(0);
     expect(first).toBeLessThan(firstRange);
   });
