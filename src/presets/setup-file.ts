@@ -176,7 +176,8 @@ function outputProblems(json: SetupJson, problems: Problem[]): number[] | undefi
   const mode: OutputMode = output.mode ?? 'bend';
   const entry = OUTPUT_MODES[mode];
   for (const [field, setting] of OUTPUT_SETTINGS) {
-    if (output[field] !== undefined && !(entry.settings as readonly ModeSetting[]).includes(setting)) problems.push({ path: `$.output.${field}`, message: `does not apply to mode "${mode}"` });
+    // A warning: a setup may keep another mode's settings for when the player switches to it.
+    if (output[field] !== undefined && !(entry.settings as readonly ModeSetting[]).includes(setting)) problems.push({ path: `$.output.${field}`, warning: true, message: `does not apply to mode "${mode}" (ignored)` });
   }
   if (output.channels === undefined) return undefined;
   const channels = collecting(problems, '$.output.channels', () => parseChannels(output.channels!, ''));

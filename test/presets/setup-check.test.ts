@@ -30,7 +30,7 @@ describe('check sees what play would refuse, all of it at once, with lines', () 
     expect(lines(text)).toEqual([
       'stage.json:3: tuning: unknown tuning "meantone": did you mean meantone-1-3, meantone-1-4, meantone-1-5, meantone-1-6, meantone-2-7?',
       'stage.json:4: reference: reference "A=415": the note needs its octave, as in A4=415',
-      'stage.json:5: output.layout: does not apply to mode "mts-note"',
+      'stage.json:5: warning: output.layout: does not apply to mode "mts-note" (ignored)',
       'stage.json:5: output.channels: "0-17": 0 is not a MIDI channel (1–16)',
       'stage.json:6: spelling.key: has no effect with strategy "fixed"',
       expect.stringMatching(/^stage\.json:10: controls\[2\]\.key: .*H minor/u),
@@ -94,5 +94,23 @@ describe('no option silently ignored', () => {
     expect(resolveEngineCli({ tuning: 'quarter-comma' }).preset.id).toBe('meantone-1-4');
     expect(resolveEngineCli({ tuning: 'werckmeister' }).preset.id).toBe('werckmeister-3');
     expect(resolveEngineCli({ tuning: 'pythagorean' }).preset.id).toBe('pythagorean');
+  });
+});
+
+describe('the README’s setup example', () => {
+  it('loads as printed (comments, trailing commas and all), beside the score it names', async () => {
+    const { readFileSync, copyFileSync } = await import('node:fs');
+    const readme = readFileSync(join(import.meta.dirname, '..', '..', 'README.md'), 'utf8');
+    const section = readme.slice(readme.indexOf('### Setup files'));
+    const example = /```jsonc\n([\s\S]*?)```/u.exec(section)?.[1];
+    expect(example).toBeDefined();
+    const dir = tempDir('diesis-readme-');
+    mkdirSync(join(dir, 'scores'));
+    // The score it names: a Mozart movement from corpus/mozart-scores (CC BY-NC-SA 4.0, see its LICENSE.md).
+    copyFileSync(join(import.meta.dirname, '..', '..', 'corpus', 'mozart-scores', 'sonata01-2.mxl'), join(dir, 'scores', 'piece.mxl'));
+    writeFileSync(join(dir, 'setup.json'), example!);
+    const check = checkSetup(example!, join(dir, 'setup.json'));
+    expect(check.problems.map((p) => formatProblem('README', p, check.source))).toEqual([]);
+    expect(check.setup?.bindings.length).toBeGreaterThan(5);
   });
 });
