@@ -1,4 +1,4 @@
-import { formatRange, formatSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
+import { formatPitchClass, formatRange, formatSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
 import type { RouterEvent } from '../router/events.js';
 import type { NoteId } from '../router/note-id.js';
 import { channelOf, keyOfNote, sourceOf } from '../router/note-id.js';
@@ -137,7 +137,9 @@ export class LiveView {
     const lines: string[] = [];
     lines.push(s.bold(title));
     const window = formatRange(speller.currentWindow(), this.names);
-    lines.push(`spelling ${s.bold(strategy)}  window ${s.bold(window)}${o.shift ? `  shift ${o.shift > 0 ? '+' : ''}${o.shift}` : ''}${this.passing ? s.yellow('  12-ET PASS') : ''}`);
+    const key = speller.currentKey();
+    const inKey = key ? `  key ${s.bold(`${formatPitchClass(key.tonic, this.names)} ${key.mode}`)}` : '';
+    lines.push(`spelling ${s.bold(strategy)}${inKey}  window ${s.bold(window)}${o.shift ? `  shift ${o.shift > 0 ? '+' : ''}${o.shift}` : ''}${this.passing ? s.yellow('  12-ET PASS') : ''}`);
     const following = scoreStatus(speller);
     if (following) lines.push(following.includes('LOST') ? s.yellow(following) : following);
     lines.push(`pedals ${on(this.sustain, 'sustain')} ${on(this.sostenuto, 'sostenuto')}   latches ${on(o.flip, 'flip')} ${on(o.force === 'sharps', 'sharps')} ${on(o.force === 'flats', 'flats')} ${on(o.frozen, 'freeze')}`);

@@ -2,7 +2,6 @@ import { formatPitchClass, formatRange, formatSpelledPitch, type NameStyle, type
 import type { Router, RouterEvent } from '../router/router.js';
 import { keyOfNote, type NoteId } from '../router/note-id.js';
 import type { ControlledSpeller } from '../spelling/controlled.js';
-import { FollowSpeller } from '../spelling/follow.js';
 import { equalTemperedDeviation, formatReference, type Reference, type Tuning } from '../tuning/index.js';
 import type { StageKey, StageNote, StagePiece, StageState, StageWarning } from './stage-state.js';
 
@@ -98,12 +97,8 @@ export function lonePiece(title: string): StagePiece {
 
 /** The key `follow` believes it is in (`D minor`); for the other strategies the tonic alone (`tonic D`), or null. */
 function keyInForce(speller: ControlledSpeller): string | null {
-  if (speller.base instanceof FollowSpeller) {
-    const { tonic, mode } = speller.base.key;
-    return `${formatPitchClass({ fifths: tonic }, UNICODE)} ${mode}`;
-  }
-  const tonic = speller.currentTonic();
-  return tonic ? `tonic ${formatPitchClass(tonic, UNICODE)}` : null;
+  const key = speller.currentKey();
+  return key ? `${formatPitchClass(key.tonic, UNICODE)} ${key.mode}` : null;
 }
 
 /** Cents from 12-ET of a spelling in a tuning, remembered: the exact arithmetic is not redone 30 times a second. */

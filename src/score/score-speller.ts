@@ -80,6 +80,10 @@ export class ScoreSpeller implements Speller {
     return this.fallback.currentTonic();
   }
 
+  currentKey(): DeclaredKey | undefined {
+    return this.fallback.currentKey?.();
+  }
+
   declaredTonic(): PitchClass | undefined {
     return this.fallback.declaredTonic?.();
   }

@@ -40,6 +40,10 @@ export class ControlledSpeller implements Speller {
     private declared: DeclaredKey | undefined = undefined,
   ) {}
 
+  currentKey(): DeclaredKey | undefined {
+    return this.base.currentKey?.();
+  }
+
   declaredTonic(): PitchClass | undefined {
     return this.declared?.tonic;
   }

@@ -326,6 +326,10 @@ export class FollowSpeller implements Speller {
     return this.current;
   }
 
+  currentKey(): DeclaredKey {
+    return { tonic: pitchClass(this.current.tonic), mode: this.current.mode };
+  }
+
   /** The centre new notes are spelled around: the key's window centre, drawn towards the local centre. */
   private centre(): number {
     const keyCentre = Number.isNaN(this.softCentre) ? windowCentreOf(this.current) : this.softCentre;

@@ -25,6 +25,8 @@ export interface Speller {
   currentWindow(): KeyboardWindow;
   /** The tonic of the context, for tunings built on one (just intonation); undefined: the tuning's own. */
   currentTonic(): PitchClass | undefined;
+  /** Optional: the key in force now (declared, or as the strategy estimates it), for displays. */
+  currentKey?(): DeclaredKey | undefined;
   /** Optional: the tonic of the key the player declared (`--key`, a set-key control), not an estimate. */
   declaredTonic?(): PitchClass | undefined;
   /** Optional: jumps to a declared key (a control action). */
@@ -44,6 +46,7 @@ export interface Speller {
 export class WindowSpeller implements Speller {
   private window: KeyboardWindow;
   private tonic: PitchClass | undefined;
+  private key: DeclaredKey | undefined;
   /** Each key's spelling in the window, filled as keys are played. */
   private spelled: Array<SpelledPitch | undefined> = [];
 
@@ -54,6 +57,7 @@ export class WindowSpeller implements Speller {
     } else {
       this.window = keyWindow(windowOrKey);
       this.tonic = windowOrKey.tonic;
+      this.key = windowOrKey;
     }
   }
 
@@ -75,9 +79,14 @@ export class WindowSpeller implements Speller {
     return this.tonic;
   }
 
+  currentKey(): DeclaredKey | undefined {
+    return this.key;
+  }
+
   setKey(key: DeclaredKey): void {
     this.window = keyWindow(key);
     this.tonic = key.tonic;
+    this.key = key;
     this.spelled = [];
   }
 }

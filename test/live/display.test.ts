@@ -7,6 +7,7 @@ import { createEngine } from '../../src/router/setup.js';
 import type { RouterEvent } from '../../src/router/router.js';
 import { ControlledSpeller } from '../../src/spelling/controlled.js';
 import { createStrategy } from '../../src/spelling/strategy.js';
+import { parseKey } from '../../src/spelling/keys.js';
 import { A440 } from '../../src/tuning/index.js';
 
 function stage(): { view: LiveView; events: RouterEvent[]; engine: ReturnType<typeof createEngine>; speller: ControlledSpeller } {
@@ -40,13 +41,26 @@ describe('the stage display', () => {
     for (const e of events) view.event(e);
     view.event({ type: 'out-of-range', time: 3, pitch: parseSpelledPitch('B#4'), neededCents: 231.2 });
     const frame = view.frame();
-    expect(frame).toContain('spelling fixed  window E♭..G♯');
+    expect(frame).toContain('spelling fixed  window E♭..G♯'); // a fixed window has no key
     expect(frame).toMatch(/pedals \[sustain\] {2}sostenuto +latches \[flip\]/u);
     expect(frame).toContain('from Stage Keys, pedal box (unplugged)  to Organ');
     expect(frame).toMatch(/sounding \(2\)\n {2}D4\s+\+3\.4 c\s+294\.25 Hz {2}ch \d+\n {2}G♯4\s+−17\.1 c\s+411\.22 Hz/u); // meantone D4 and G♯4 at A4 = 440
     expect(frame).toContain('messages the synth missed 3');
     expect(frame).toContain('! B♯4 needs 231.2 cents: more than the output can tune');
     expect(frame).toContain('p or space = PANIC');
+  });
+
+  it('names the key in force', () => {
+    const speller = new ControlledSpeller(createStrategy({ strategy: 'key', key: parseKey('F# minor') }));
+    const engine = createEngine({ tuning: loadTuningPreset('meantone-1-4').tuning, reference: A440, speller });
+    const view = new LiveView(
+      { tally: engine.tally, speller, strategy: 'key', title: 't', lostMessages: () => 0, ports: () => ({ inputs: [], output: { name: 'Organ', connected: true } }) },
+      makeStyle(false),
+      { accidentals: 'unicode' },
+    );
+    expect(view.frame()).toContain('spelling key  key F♯ minor  window');
+    speller.setKey(parseKey('Bb major'));
+    expect(view.frame()).toContain('key B♭ major');
   });
 
   it('keeps showing notes the sustain pedal holds after their keys go up, until the pedal lifts', () => {

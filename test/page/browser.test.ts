@@ -121,7 +121,7 @@ describe('the stage page in a real browser (headless chromium)', () => {
     await page.selectOption('#mode', 'major');
     await page.click('#set-key');
     await page.waitForSelector('#key-1 .spelling:text("D♭")');
-    expect(await page.textContent('#key')).toBe('tonic D♭');
+    expect(await page.textContent('#key')).toBe('D♭ major');
     expect(await page.textContent('#window')).toBe('F♭..A'); // D♭ major's window: from its lowered third (F♭) to its raised fifth (A)
 
     // Panic on the page: All Notes Off and centred bends reach the synth (MIDI 1.0), nothing sounds.

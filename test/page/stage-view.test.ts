@@ -56,7 +56,7 @@ describe('the stage state', () => {
     // G♯ is five fifths above the reference A: 5 × (696.58 − 700) cents; E♭ six fifths below: −6 × …
     expect(s.keys[8]!.cents).toBeCloseTo(5 * FIFTH_FROM_ET, 6);
     expect(s.keys[3]!.cents).toBeCloseTo(-6 * FIFTH_FROM_ET, 6);
-    expect(s).toMatchObject({ strategy: 'key', key: 'tonic D', window: 'E♭..G♯', passing: false, bar: null });
+    expect(s).toMatchObject({ strategy: 'key', key: 'D minor', window: 'E♭..G♯', passing: false, bar: null });
     expect(s.tuning).toMatchObject({ id: 'meantone-1-4', name: '1/4-comma meantone' });
     expect(s.reference).toBe('A4 = 440 Hz');
   });
