@@ -5,7 +5,7 @@ import { readFileSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
 import { keyOf, parseSpelledPitch, type PitchClass, type SpelledPitch } from '../src/pitch/index.js';
 import { loadTuningPreset } from '../src/presets/tuning-presets.js';
-import { parseWrittenSpellings } from '../src/spelling/accuracy.js';
+import { parseWrittenSpellings } from './accuracy.js';
 import { FollowSpeller } from '../src/spelling/follow.js';
 import { A440, frequency, type Tuning } from '../src/tuning/index.js';
 import { AdaptiveTuner, bassDrift, CONSONANCE_FAMILIES, measurePurity, type AdaptiveSettings, type PurityReport, type SoundingEvent } from '../src/tuning/adaptive/index.js';

@@ -11,7 +11,7 @@ import type { Score } from '../src/score/score.js';
 import { ScoreSpeller } from '../src/score/score-speller.js';
 import { createStrategy } from '../src/spelling/strategy.js';
 import { readMidiFile } from '../src/render/smf.js';
-import { parseWrittenSpellings, scoreSpelling, spellEvents } from '../src/spelling/accuracy.js';
+import { parseWrittenSpellings, scoreSpelling, spellEvents } from './accuracy.js';
 import { packageRoot } from '../src/util/package-root.js';
 import { CLEAN, perform, type PerformanceOptions, type PlayedNote } from './score-performance.js';
 import { heading, percentile } from './timing.js';

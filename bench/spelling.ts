@@ -1,6 +1,6 @@
 import { readFileSync } from 'node:fs';
 import { DEFAULT_WINDOW, formatSpelledPitch } from '../src/pitch/index.js';
-import { parseWrittenSpellings, scoreSpelling, spellEvents, spellTake, type TakeEvent } from '../src/spelling/accuracy.js';
+import { parseWrittenSpellings, scoreSpelling, spellEvents, spellTake, type TakeEvent } from './accuracy.js';
 import { DEFAULT_FOLLOW, FollowSpeller, type FollowParameters } from '../src/spelling/follow.js';
 import { fixedSpeller, type NoteContext, type Speller } from '../src/spelling/speller.js';
 import { CORPORA, corpusDir, loadCorpus, type Movement } from './corpus.js';

@@ -322,10 +322,6 @@ export class FollowSpeller implements Speller {
   }
 
   /** The key the speller believes it is in. */
-  get key(): Key {
-    return this.current;
-  }
-
   currentKey(): DeclaredKey {
     return { tonic: pitchClass(this.current.tonic), mode: this.current.mode };
   }

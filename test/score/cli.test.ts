@@ -2,7 +2,7 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { readScoreFile } from '../../src/presets/score-file.js';
-import { parseWrittenSpellings } from '../../src/spelling/accuracy.js';
+import { parseWrittenSpellings } from '../../bench/accuracy.js';
 import { runCli } from '../cli/run-cli.js';
 import { tempDir } from '../support/temp.js';
 

@@ -9,7 +9,7 @@ import { readScoreFile } from '../../src/presets/score-file.js';
 import type { Score } from '../../src/score/score.js';
 import { ScoreSpeller, type NoteMatch } from '../../src/score/score-speller.js';
 import { unfoldMeasures } from '../../src/score/structure.js';
-import { parseWrittenSpellings, scoreSpelling, spellEvents } from '../../src/spelling/accuracy.js';
+import { parseWrittenSpellings, scoreSpelling, spellEvents } from '../../bench/accuracy.js';
 import { FollowSpeller } from '../../src/spelling/follow.js';
 import { WindowSpeller } from '../../src/spelling/speller.js';
 import { createStrategy } from '../../src/spelling/strategy.js';

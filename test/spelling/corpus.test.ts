@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { CORPORA, corpusDir, loadCorpus, type CorpusName } from '../../bench/corpus.js';
-import { parseWrittenSpellings, scoreSpelling, spellEvents } from '../../src/spelling/accuracy.js';
+import { parseWrittenSpellings, scoreSpelling, spellEvents } from '../../bench/accuracy.js';
 import { FollowSpeller } from '../../src/spelling/follow.js';
 import { fixedSpeller, type Speller } from '../../src/spelling/speller.js';
 

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { corpusDir, loadCorpus } from '../../bench/corpus.js';
 import { perform, performedEvents, writtenNotes } from '../../bench/performance.js';
 import { formatSpelledPitch, keyOf, parseSpelledPitch } from '../../src/pitch/index.js';
-import { spellTake, type TakeEvent } from '../../src/spelling/accuracy.js';
+import { spellTake, type TakeEvent } from '../../bench/accuracy.js';
 import { FollowSpeller } from '../../src/spelling/follow.js';
 
 // A movement of the open Mozart corpus (corpus/mozart, CC BY-NC-SA 4.0) as the written notes.

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { formatSpelledPitch, keyOf, parseSpelledPitch } from '../../src/pitch/index.js';
-import { spellTake, type TakeEvent } from '../../src/spelling/accuracy.js';
+import { spellTake, type TakeEvent } from '../../bench/accuracy.js';
 import { FollowSpeller } from '../../src/spelling/follow.js';
 import { parseKey } from '../../src/spelling/keys.js';
 import { createStrategy } from '../../src/spelling/strategy.js';

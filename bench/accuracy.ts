@@ -1,6 +1,6 @@
-import { formatSpelledPitch, type SpelledPitch } from '../pitch/index.js';
-import type { FileEvent } from '../render/smf.js';
-import type { NoteContext, Speller } from './speller.js';
+import { formatSpelledPitch, type SpelledPitch } from '../src/pitch/index.js';
+import type { FileEvent } from '../src/render/smf.js';
+import type { NoteContext, Speller } from '../src/spelling/speller.js';
 
 /** A spelled note-on of a file, in file order. */
 export interface SpelledOnset {
