@@ -1,4 +1,4 @@
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { performance } from 'node:perf_hooks';
@@ -34,13 +34,15 @@ export function benchAudio(): void {
   const bend = timed('bend');
   measure('built-in voice (pluck)', () => renderPreview(bend, { sampleRate: 44_100, voice: 'pluck' }));
   // A source set made here: one tone every third key, 2 s each, looped.
-  const dir = mkdtempSync(join(tmpdir(), 'diesis-bench-'));
+  const work = mkdtempSync(join(tmpdir(), 'diesis-bench-'));
+  const dir = join(work, 'sources');
+  mkdirSync(dir);
   for (let key = 36; key <= 96; key += 3) {
     const hz = 440 * 2 ** ((key - 69) / 12);
     const samples = Float32Array.from({ length: 88_200 }, (_, n) => 0.3 * Math.sin((2 * Math.PI * hz * n) / 44_100) * Math.exp(-n / 44_100));
     writeFileSync(join(dir, `${String(key).padStart(3, '0')}.wav`), writeWav({ sampleRate: 44_100, channels: [samples], loop: { start: 44_100, end: 88_000 } }, 16));
   }
-  const out = join(dir, 'set');
+  const out = join(work, 'set'); // beside the sources, never inside them
   const t0 = performance.now();
   const manifest = buildSampleSet({ sources: readSourceFolder(dir), tuning, tuningName: 'quarter-comma', reference: A440, range: parseFifthsRange('Eb..G#'), compass: { low: 36, high: 96 }, maxShift: 2 }, out);
   const build = (performance.now() - t0) / 1000;
@@ -48,5 +50,5 @@ export function benchAudio(): void {
   const set = loadSampleSet(out);
   const samples = timed('samples', set.layout);
   measure('sample set', () => playSampleSet(samples, set, 44_100));
-  rmSync(dir, { recursive: true, force: true });
+  rmSync(work, { recursive: true, force: true });
 }
