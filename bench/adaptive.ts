@@ -1,6 +1,6 @@
 // Adaptive just intonation on the corpora: purity of what sounds, drift, notes moved, cost per note.
-// The measure (src/tuning/adaptive/purity.ts) takes (time, frequency, on/off) events, so the same
-// code can later measure the engine's output as the reference synth sounds it.
+// The measure (src/tuning/adaptive/purity.ts) takes (time, frequency, on/off) events: from the tuner
+// driven directly, and ("via engine") from the reference synth playing the whole engine's output.
 import { readFileSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
 import { keyOf, parseSpelledPitch, type PitchClass, type SpelledPitch } from '../src/pitch/index.js';
@@ -9,6 +9,7 @@ import { parseWrittenSpellings } from './accuracy.js';
 import { FollowSpeller } from '../src/spelling/follow.js';
 import { A440, frequency, type Tuning } from '../src/tuning/index.js';
 import { AdaptiveTuner, bassDrift, CONSONANCE_FAMILIES, measurePurity, type AdaptiveSettings, type PurityReport, type SoundingEvent } from '../src/tuning/adaptive/index.js';
+import { soundedThroughEngine } from './adaptive-engine.js';
 import { corpusDir, loadCorpus, type Movement } from './corpus.js';
 import { heading, percentile } from './timing.js';
 
@@ -229,6 +230,21 @@ function rowsFor(group: Pieces, table: Tuning, fixed: ReadonlyArray<readonly [st
     }
     const purity = measurePurity(events.flat());
     rows.push({ label, purity, drift, compromises, notes, moved: moved + purity.moved });
+  }
+  {
+    // The same through the whole engine (mts-note) into the reference synth, measured from what it sounds.
+    const events: SoundingEvent[][] = [];
+    const drift: number[] = [];
+    for (const piece of group.pieces) {
+      if (piece.notes.length === 0) continue;
+      const tonic = tonicOf(piece.notes);
+      const sounded = soundedThroughEngine(piece.notes, table, tonic);
+      events.push(sounded);
+      const d = tonic && bassDrift(sounded, tonic.fifths);
+      if (d !== undefined) drift.push(d);
+    }
+    const purity = measurePurity(events.flat());
+    rows.push({ label: '  via engine', purity, drift, moved: purity.moved });
   }
   for (const [label, tuning] of fixed) {
     const events = group.pieces.filter((p) => p.notes.length > 0).flatMap((p) => {
