@@ -4,7 +4,14 @@ import type { Speller } from '../src/spelling/speller.js';
 import { SynthModel, type ModelVoice } from '../src/synth/reference-synth.js';
 import type { SoundingEvent } from '../src/tuning/adaptive/purity.js';
 import { A440, type Tuning } from '../src/tuning/index.js';
-import type { WrittenNote } from './adaptive.js';
+
+/** A note of a piece with its written spelling: on at `on`, off at `off` (milliseconds). */
+export interface WrittenNote {
+  readonly id: number;
+  readonly on: number;
+  readonly off: number;
+  readonly pitch: SpelledPitch;
+}
 
 /** A speller that says what the score wrote (the tuning is measured, not the spelling). */
 function writtenSpeller(notes: readonly WrittenNote[], tonic: PitchClass | undefined): Speller {

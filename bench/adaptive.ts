@@ -9,17 +9,11 @@ import { parseWrittenSpellings } from './accuracy.js';
 import { FollowSpeller } from '../src/spelling/follow.js';
 import { A440, frequency, type Tuning } from '../src/tuning/index.js';
 import { AdaptiveTuner, bassDrift, CONSONANCE_FAMILIES, measurePurity, type AdaptiveSettings, type PurityReport, type SoundingEvent } from '../src/tuning/adaptive/index.js';
-import { soundedThroughEngine } from './adaptive-engine.js';
+import { soundedThroughEngine, type WrittenNote } from './adaptive-engine.js';
 import { corpusDir, loadCorpus, type Movement } from './corpus.js';
 import { heading, percentile } from './timing.js';
 
-/** A note of a piece with its written spelling: on at `on`, off at `off` (milliseconds). */
-export interface WrittenNote {
-  readonly id: number;
-  readonly on: number;
-  readonly off: number;
-  readonly pitch: SpelledPitch;
-}
+export type { WrittenNote } from './adaptive-engine.js';
 
 /** A piece as notes with written spellings: the file's timing, the CSV's spellings (matched by tick and key). */
 export function writtenNotes(m: Movement): WrittenNote[] {

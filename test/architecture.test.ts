@@ -28,8 +28,10 @@ function importsOf(file: string): string[] {
 
 const folderOf = (file: string): string => relative(SRC, file).split('/')[0] ?? '';
 const sourceFiles = files(SRC);
+/** Cycles are looked for in the benches too. */
+const graphFiles = [...sourceFiles, ...files(join(ROOT, 'bench'))];
 const graph = new Map<string, string[]>(
-  sourceFiles.map((f) => [f, importsOf(f).filter((s) => s.startsWith('.')).map((s) => resolve(dirname(f), s.replace(/\.js$/u, '.ts')))]),
+  graphFiles.map((f) => [f, importsOf(f).filter((s) => s.startsWith('.')).map((s) => resolve(dirname(f), s.replace(/\.js$/u, '.ts')))]),
 );
 
 /** Strongly connected components of more than one file (Tarjan), i.e. import cycles. */
