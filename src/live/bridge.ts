@@ -2,6 +2,7 @@ import { performance } from 'node:perf_hooks';
 import type { TimedMessage } from '../midi/bytes.js';
 import type { Router } from '../router/router.js';
 import { UserError } from '../util/errors.js';
+import type { BridgeNotice } from '../io/port-notice.js';
 import { closeWebmidiInput, describePorts, findInput, findOutput, matchPort, onPortChange, type Output, type PortChange } from '../io/midi-system.js';
 import { openRawInput, rawInputNames, watchInputs, type RawInput } from '../io/raw-input.js';
 import { addDrops, InputStream, NO_DROPS, type InputDrops } from '../midi/input-stream.js';
@@ -21,9 +22,6 @@ export interface BridgeOptions {
   readonly clock?: (() => number) | undefined;
 }
 
-export type BridgeNotice =
-  | { readonly kind: 'port'; readonly change: PortChange; readonly action: string }
-  | { readonly kind: 'send-failed'; readonly error: string };
 
 interface InputSlot {
   readonly query: string;
@@ -46,6 +44,8 @@ interface InputSlot {
  * system exclusive bounded in length and time); what it drops is counted (`inputDrops`) and added
  * to the engine's malformed-byte count that the display shows.
  */
+export type { BridgeNotice } from '../io/port-notice.js';
+
 export class Bridge {
   private readonly inputs: InputSlot[];
   private output: Output | undefined;

@@ -7,7 +7,7 @@ import { parseFifthsRange } from '../pitch/index.js';
 import type { Router, RouterEvent } from '../router/router.js';
 import type { ControlledSpeller } from '../spelling/controlled.js';
 import { DEFAULT_WOLF_LIMITS, type Reference, type Tuning } from '../tuning/index.js';
-import type { BridgeNotice } from '../live/bridge.js';
+import type { BridgeNotice } from '../io/port-notice.js';
 import { PAGE_UPDATES_PER_SECOND, PageServer, isLoopback } from './page-server.js';
 import { applyStageControl } from './stage-controls.js';
 import { lonePiece, StageTracker, stageStateOf, type StageSources } from './stage-view.js';
