@@ -1,6 +1,6 @@
 import { basename, extname } from 'node:path';
 import type { Command } from 'commander';
-import { disableMidi, enableMidi, listPorts } from '../io/midi-system.js';
+import { disableMidi, enableMidi, listPorts, midiSystemNote } from '../io/midi-system.js';
 import { runUntilStopped } from '../live/run.js';
 import type { SessionOptions } from '../live/session.js';
 import { formatRange } from '../pitch/index.js';
@@ -91,6 +91,12 @@ export function registerPlay(program: Command, io: CommandIo): void {
     .action(async () => {
       await enableMidi();
       const { inputs, outputs } = listPorts();
+      const note = midiSystemNote();
+      if (note && inputs.length === 0 && outputs.length === 0) {
+        io.stdout.write(`${note}\n`); // once, instead of "no MIDI inputs" and "no MIDI outputs"
+        await disableMidi();
+        return;
+      }
       for (const [label, ports] of [['inputs', inputs], ['outputs', outputs]] as const) {
         if (ports.length === 0) {
           io.stdout.write(`no MIDI ${label}\n`);
