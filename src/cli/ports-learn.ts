@@ -81,7 +81,8 @@ type Ending = { readonly kind: 'gesture'; readonly gesture: Gesture; readonly in
 /** Listens until `onGesture` says done, the player stops, or `--stop-after` passes. */
 async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise<Ending> {
   await enableMidi();
-  const tracker = new GestureTracker();
+  const trackers = new Map<string, GestureTracker>(); // one per input, so each gesture keeps its input's name
+  const trackerOf = (input: string): GestureTracker => trackers.get(input) ?? trackers.set(input, new GestureTracker()).get(input)!;
   const started = performance.now();
   return new Promise<Ending>((resolve, reject) => {
     const cleanups: Array<() => void> = [];
@@ -103,9 +104,11 @@ async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise
         (input, time, message) => {
           const text = describeMessage(message);
           if (watching && text) io.stdout.write(`${((time - started) / 1000).toFixed(2).padStart(7)} ${several ? `${input}: ` : ''}${text}\n`);
-          heard(input, tracker.hear(time, message));
+          heard(input, trackerOf(input).hear(time, message));
         },
-        (time) => heard('', tracker.tick(time)),
+        (time) => {
+          for (const [input, tracker] of trackers) heard(input, tracker.tick(time));
+        },
       );
     } catch (error) {
       reject(error);
@@ -118,7 +121,7 @@ async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise
     const quit = process.stdin.isTTY ? 'q or Ctrl-C' : 'Ctrl-C';
     io.stdout.write(watching ? `listening to ${names}: press pedals, keys and buttons to see what they send; ${quit} ends\n` : `listening to ${names}: press the pedal (and let it go), the key switch or the button for ${cli.action ?? 'the control'}; ${quit} gives up\n`);
     for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
-      const handler = (): void => end({ kind: 'stopped', why: signal });
+      const handler = (): void => end({ kind: 'stopped', why: signal === 'SIGINT' ? 'stopped by Ctrl-C' : `stopped by ${signal}` });
       process.once(signal, handler);
       cleanups.push(() => process.removeListener(signal, handler));
     }
