@@ -9,6 +9,8 @@ import { ControlledSpeller } from '../../src/spelling/controlled.js';
 import { createStrategy } from '../../src/spelling/strategy.js';
 import { A440 } from '../../src/tuning/index.js';
 import { tempDir } from '../support/temp.js';
+import { virtualInput, virtualOutput } from '../../src/io/virtual-ports.js';
+import { SynthModel } from '../../src/synth/reference-synth.js';
 
 const root = join(import.meta.dirname, '../..');
 
@@ -65,5 +67,37 @@ describe('--stop-after while --wait waits for a port', () => {
     expect(code).toBe(EXIT_CODES.quit);
     expect(stderr).toContain('waiting for "a keyboard that is never plugged in", "a synth that is never plugged in"');
     expect(stderr).toContain('diesis: --stop-after 0.3: stopped while still waiting for the ports');
+  });
+
+  it('a port that comes during the wait: the session runs, and the same timer ends it with the panic', async () => {
+    const synth = new SynthModel(440);
+        const io = { stdout: { write: () => undefined }, stderr: { write: () => undefined } };
+    const running = runUntilStopped(
+      {
+        inputs: ['late keyboard'],
+        output: 'late synth',
+        engine: { tuning: loadTuningPreset('meantone-1-4').tuning, reference: A440 },
+        speller: new ControlledSpeller(createStrategy({ strategy: 'fixed' })),
+        strategy: 'fixed',
+        title: 'test',
+        quiet: true,
+        virtualOnly: true,
+        wait: true,
+      },
+      io,
+      1.5,
+    );
+    await new Promise((r) => setTimeout(r, 100));
+    virtualOutput('late synth', (bytes) => void synth.receive(performance.now(), bytes));
+    const keyboard = virtualInput('late keyboard');
+    while (synth.zone === undefined) await new Promise((r) => setTimeout(r, 20)); // the session has started: the MPE set-up arrived
+    let ended = false;
+    void running.then(() => (ended = true));
+    keyboard.send([0x90, 60, 90]); // a note held until the timer ends the session
+    while (!ended && synth.active().length === 0) await new Promise((r) => setTimeout(r, 10));
+    expect(ended).toBe(false);
+    expect(synth.active()).toHaveLength(1);
+    expect(await running).toBe(EXIT_CODES.quit);
+    expect(synth.active()).toEqual([]); // the panic sequence reached the synth
   });
 });
