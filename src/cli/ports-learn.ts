@@ -205,10 +205,15 @@ async function learn(cli: ListenCli, io: CommandIo, ask: Asker | undefined): Pro
   if (ending.kind === 'stopped') throw new UserError(`ports --learn: ${ending.why}; nothing was learned`);
   const { gesture } = ending;
   io.stdout.write(`heard: ${describeGesture(gesture)}\n`);
-  if (!action) {
+  for (let tries = 1; !action; tries++) {
     const answer = await ask!(`what should it do? (${ACTION_NAMES.join(', ')}) `);
     const key = answer === 'set-key' ? await ask!('which key? (as in D minor) ') : undefined;
-    action = actionFrom(answer, { ...cli, key });
+    try {
+      action = actionFrom(answer, { ...cli, key });
+    } catch (error) {
+      if (!(error instanceof UserError) || tries === 3) throw error;
+      io.stdout.write(`${error.message}\n`); // a slip at the terminal: ask again
+    }
   }
   const control = controlOf(gesture, action);
   io.stdout.write(`control: ${compactJson(control)}\n`);

@@ -333,13 +333,14 @@ export function writeAgreedText(path: string, text: string, how: 'create' | 'rep
   const existing = statOrUndefined(path);
   if (how === 'create' && existing) throw new UserError(`${path}: exists already; diesis does not replace a file it was not told it may change`);
   if (how === 'replace' && !existing?.isFile()) throw new UserError(`${path}: is not a file diesis can change`);
-  const temporary = temporaryBeside(path);
+  const target = how === 'replace' ? realpathSync(path) : path; // through a link, the file it names is the one changed
+  const temporary = temporaryBeside(target);
   try {
     writeFileSync(temporary, text, { flag: 'wx', mode: existing ? existing.mode & 0o777 : 0o644 });
     if (how === 'create') {
-      linkSync(temporary, path);
+      linkSync(temporary, target);
       rmSync(temporary, { force: true });
-    } else renameSync(temporary, path);
+    } else renameSync(temporary, target);
   } catch (error) {
     rmSync(temporary, { force: true });
     throw new UserError(errnoOf(error) === 'EEXIST' ? `${path}: exists already; diesis does not replace a file it was not told it may change` : `${path}: cannot be written (${errnoOf(error)})`);

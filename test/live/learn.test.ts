@@ -1,4 +1,5 @@
-import { readFileSync, writeFileSync } from 'node:fs';
+import { lstatSync, readFileSync, symlinkSync, writeFileSync } from 'node:fs';
+import { writeAgreedText } from '../../src/util/files.js';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { main } from '../../src/cli/main.js';
@@ -208,7 +209,7 @@ describe('diesis ports --learn, on virtual ports', () => {
     writeFileSync(file, PLAYERS_SETUP);
     const input = virtualInput(`learn keys ${++serial}`);
     const questions: string[] = [];
-    const answers = ['set-key', 'D minor', 'y'];
+    const answers = ['set key', 'set-key', 'D minor', 'y']; // a slip first: asked again
     let stdout = '';
     const io = {
       stdout: {
@@ -225,7 +226,9 @@ describe('diesis ports --learn, on virtual ports', () => {
     });
     await disableMidi(); // as main does after every command
     expect(questions[0]).toMatch(/^what should it do\?/u);
-    expect(questions[2]).toMatch(new RegExp(`^add it to ${file.replace(/[.*+?^${}()|[\]\\]/gu, '\\$&')}\\?`, 'u'));
+    expect(questions[1]).toMatch(/^what should it do\?/u);
+    expect(stdout).toContain('--action set key: not an action');
+    expect(questions[3]).toMatch(new RegExp(`^add it to ${file.replace(/[.*+?^${}()|[\]\\]/gu, '\\$&')}\\?`, 'u'));
     expect(stdout).toContain('control: { "program": 7, "channel": 1, "action": "set-key", "key": "D minor" }');
     expect(checkSetup(readFileSync(file, 'utf8'), file).setup?.json.controls?.[2]).toEqual({ program: 7, channel: 1, action: 'set-key', key: 'D minor' });
   });
@@ -250,5 +253,20 @@ describe('diesis ports --watch', () => {
     expect(r.stdout).toMatch(/ key 24 \(C1\) on channel 16: let go\n/u);
     expect(r.stdout).toMatch(/ controller 64 \(sustain pedal\) on channel 1: 127\n/u);
     expect(r.stdout).toContain('→ controller 64 (sustain pedal) on channel 1: 127 when pressed, 0 when let go (a switch pedal)');
+  });
+});
+
+describe('writing a setup the player agreed to', () => {
+  it('create never replaces a file; replace through a link changes the file it names and keeps the link', () => {
+    const dir = tempDir('diesis-agreed-');
+    const file = join(dir, 'mine.json');
+    writeFileSync(file, '{}\n');
+    expect(() => writeAgreedText(file, '{ "name": "x" }\n', 'create')).toThrow(/exists already/u);
+    expect(readFileSync(file, 'utf8')).toBe('{}\n');
+    const link = join(dir, 'link.json');
+    symlinkSync(file, link);
+    writeAgreedText(link, '{ "name": "y" }\n', 'replace');
+    expect(lstatSync(link).isSymbolicLink()).toBe(true);
+    expect(readFileSync(file, 'utf8')).toBe('{ "name": "y" }\n');
   });
 });
