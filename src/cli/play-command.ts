@@ -86,37 +86,40 @@ export function registerPlay(program: Command, io: CommandIo): void {
       process.exitCode = await runDemo(io, { loop, page: cli });
     });
 
-  const portsCommand = program.command('ports').description('list the MIDI inputs and outputs; --watch shows what a pedal or key sends, --learn binds it in a setup');
-  addListenOptions(portsCommand).action(async (cli: ListenCli) => {
-    if (cli.watch || cli.learn || Object.keys(cli).length > 0) return runListenCommand(cli, io);
-    await enableMidi();
-    const { inputs, outputs } = listPorts();
-    const note = midiSystemNote();
-    if (note && inputs.length === 0 && outputs.length === 0) {
-      io.stdout.write(`${note}\n`); // once, instead of "no MIDI inputs" and "no MIDI outputs"
-      await disableMidi();
-      return;
-    }
-    for (const [label, ports] of [['inputs', inputs], ['outputs', outputs]] as const) {
-      if (ports.length === 0) {
-        io.stdout.write(`no MIDI ${label}\n`);
-        continue;
+  const portsCommand = program
+    .command('ports')
+    .description('list the MIDI inputs and outputs; --watch shows what a pedal or key sends, --learn binds it in a setup')
+    .action(async (cli: ListenCli) => {
+      if (Object.keys(cli).length > 0) return runListenCommand(cli, io); // --watch, --learn (src/cli/ports-learn.ts)
+      await enableMidi();
+      const { inputs, outputs } = listPorts();
+      const note = midiSystemNote();
+      if (note && inputs.length === 0 && outputs.length === 0) {
+        io.stdout.write(`${note}\n`); // once, instead of "no MIDI inputs" and "no MIDI outputs"
+        await disableMidi();
+        return;
       }
-      io.stdout.write(`${label}\n`);
-      io.stdout.write(
-        renderTable(
-          [
-            { header: 'index', align: 'right' },
-            { header: 'name', align: 'left' },
-            { header: 'manufacturer', align: 'left' },
-            { header: 'state', align: 'left' },
-          ],
-          ports.map((p) => [String(p.index), p.name, p.manufacturer, p.state]),
-        ) + '\n',
-      );
-    }
-    await disableMidi();
-  });
+      for (const [label, ports] of [['inputs', inputs], ['outputs', outputs]] as const) {
+        if (ports.length === 0) {
+          io.stdout.write(`no MIDI ${label}\n`);
+          continue;
+        }
+        io.stdout.write(`${label}\n`);
+        io.stdout.write(
+          renderTable(
+            [
+              { header: 'index', align: 'right' },
+              { header: 'name', align: 'left' },
+              { header: 'manufacturer', align: 'left' },
+              { header: 'state', align: 'left' },
+            ],
+            ports.map((p) => [String(p.index), p.name, p.manufacturer, p.state]),
+          ) + '\n',
+        );
+      }
+      await disableMidi();
+    });
+  addListenOptions(portsCommand);
 }
 
 export function sessionTitle(resolved: ReturnType<typeof resolveEngineCli>): { engine: SessionOptions['engine']; title: string } {
