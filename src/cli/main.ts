@@ -8,6 +8,7 @@ import { registerRender } from './render-command.js';
 import { registerSpell } from './spell-command.js';
 import { registerPlay } from './play-command.js';
 import { registerSamples } from './samples-command.js';
+import { registerSynthCheck } from './synth-check-command.js';
 
 const VERSION = '0.1.0';
 
@@ -27,6 +28,7 @@ export function buildProgram(io: CommandIo): Command {
   registerSpell(program, io);
   registerPlay(program, io);
   registerSamples(program, io);
+  registerSynthCheck(program, io);
   for (const command of program.commands) command.exitOverride().configureOutput(program.configureOutput());
   return program;
 }

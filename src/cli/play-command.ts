@@ -1,6 +1,6 @@
 import { basename, extname } from 'node:path';
 import type { Command } from 'commander';
-import { disableMidi, enableMidi, listPorts } from '../io/midi-system.js';
+import { disableMidi, enableMidi, listPorts, midiSystemNote } from '../io/midi-system.js';
 import { runUntilStopped } from '../live/run.js';
 import type { SessionOptions } from '../live/session.js';
 import { formatRange } from '../pitch/index.js';
@@ -13,6 +13,7 @@ import { describeSetup } from './render-command.js';
 import { renderTable } from '../text/table.js';
 import { integerOption, numberOption } from './options.js';
 import { stagePageRequest, type StagePageCli } from '../page/stage-cli.js';
+import { addListenOptions, runListenCommand, type ListenCli } from './ports-learn.js';
 
 interface PlayOptions extends EngineCliOptions, StagePageCli {
   in?: string[];
@@ -85,12 +86,19 @@ export function registerPlay(program: Command, io: CommandIo): void {
       process.exitCode = await runDemo(io, { loop, page: cli });
     });
 
-  program
+  const portsCommand = program
     .command('ports')
-    .description('list the MIDI inputs and outputs')
-    .action(async () => {
+    .description('list the MIDI inputs and outputs; --watch shows what a pedal or key sends, --learn binds it in a setup')
+    .action(async (cli: ListenCli) => {
+      if (Object.keys(cli).length > 0) return runListenCommand(cli, io); // --watch, --learn (src/cli/ports-learn.ts)
       await enableMidi();
       const { inputs, outputs } = listPorts();
+      const note = midiSystemNote();
+      if (note && inputs.length === 0 && outputs.length === 0) {
+        io.stdout.write(`${note}\n`); // once, instead of "no MIDI inputs" and "no MIDI outputs"
+        await disableMidi();
+        return;
+      }
       for (const [label, ports] of [['inputs', inputs], ['outputs', outputs]] as const) {
         if (ports.length === 0) {
           io.stdout.write(`no MIDI ${label}\n`);
@@ -111,6 +119,7 @@ export function registerPlay(program: Command, io: CommandIo): void {
       }
       await disableMidi();
     });
+  addListenOptions(portsCommand);
 }
 
 export function sessionTitle(resolved: ReturnType<typeof resolveEngineCli>): { engine: SessionOptions['engine']; title: string } {

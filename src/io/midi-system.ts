@@ -1,3 +1,4 @@
+import { accessSync, constants } from 'node:fs';
 import JZZ from 'jzz';
 import { WebMidi, type Input, type Output } from 'webmidi';
 import { UserError } from '../util/errors.js';
@@ -15,12 +16,39 @@ export interface MidiSystemOptions {
   readonly virtualOnly?: boolean;
 }
 
+/** Where Linux's MIDI system (the ALSA sequencer) is opened. */
+export const ALSA_SEQUENCER = '/dev/snd/seq';
+
+/**
+ * Why the computer's MIDI system cannot be opened, in a player's words, or undefined when it can
+ * (or when this is not Linux: elsewhere the system is always there). Asked before jzz loads its
+ * native engine, which otherwise prints the ALSA library's own messages straight to stderr.
+ */
+export function midiSystemProblem(platform: string = process.platform, sequencer: string = ALSA_SEQUENCER): string | undefined {
+  if (platform !== 'linux') return undefined;
+  try {
+    accessSync(sequencer, constants.R_OK | constants.W_OK);
+    return undefined;
+  } catch (error) {
+    const code = (error as NodeJS.ErrnoException).code;
+    const why = code === 'EACCES' || code === 'EPERM' ? `${sequencer} may not be opened by this user: add it to the "audio" group` : `no ALSA sequencer at ${sequencer}`;
+    return `the MIDI system is not available here (${why}): only virtual ports`;
+  }
+}
+
 let enabled = false;
+let unavailable: string | undefined;
+
+/** Why there are no hardware ports, when the MIDI system could not be opened (after `enableMidi`). */
+export function midiSystemNote(): string | undefined {
+  return unavailable;
+}
 
 /** Starts MIDI through webmidi (which uses jzz in Node); system exclusive is allowed, for MTS. */
 export async function enableMidi(options: MidiSystemOptions = {}): Promise<void> {
   if (enabled) return;
-  if (options.virtualOnly) JZZ({ engine: 'none' });
+  unavailable = options.virtualOnly ? undefined : midiSystemProblem();
+  if (options.virtualOnly || unavailable) JZZ({ engine: 'none' });
   try {
     await WebMidi.enable({ sysex: true });
   } catch (error) {
@@ -59,6 +87,7 @@ export function findOutput(query: string): Output | undefined {
 /** One line saying what exists, for errors about a missing port. */
 export function describePorts(kind: 'input' | 'output'): string {
   const ports = kind === 'input' ? WebMidi.inputs : WebMidi.outputs;
+  if (ports.length === 0 && unavailable) return unavailable.replace(/ \((.*)\): only virtual ports$/u, ': $1');
   return ports.length === 0 ? `there are no MIDI ${kind}s` : `${kind}s: ${ports.map((p, i) => `${i} "${p.name}"`).join(', ')}`;
 }
 

@@ -1,5 +1,5 @@
 import type { CommandIo } from '../util/io.js';
-import { startSession, type Session, type SessionOptions } from './session.js';
+import { startSession, StoppedWhileWaiting, type Session, type SessionOptions } from './session.js';
 
 /** Exit codes: 0 quit, 130 SIGINT (Ctrl-C), 143 SIGTERM, 129 SIGHUP (terminal closed), 70 an internal error. */
 export const EXIT_CODES = { quit: 0, SIGINT: 130, SIGTERM: 143, SIGHUP: 129, error: 70 } as const;
@@ -10,7 +10,18 @@ export const EXIT_CODES = { quit: 0, SIGINT: 130, SIGTERM: 143, SIGHUP: 129, err
  * passes; every one of these ends with the panic sequence sent before the process exits.
  */
 export async function runUntilStopped(options: SessionOptions, io: CommandIo, stopAfterSeconds?: number): Promise<number> {
-  const session: Session = await startSession(options, io);
+  // The stop timer starts now, so the time spent waiting for a port (--wait) counts too.
+  const stopAfter = new AbortController();
+  const timer = stopAfterSeconds === undefined ? undefined : setTimeout(() => stopAfter.abort(), stopAfterSeconds * 1000);
+  let session: Session;
+  try {
+    session = await startSession({ ...options, stopWaiting: stopAfter.signal }, io);
+  } catch (error) {
+    clearTimeout(timer);
+    if (!(error instanceof StoppedWhileWaiting)) throw error;
+    io.stderr.write(`diesis: --stop-after ${stopAfterSeconds ?? ''}: stopped while still waiting for the ports\n`);
+    return EXIT_CODES.quit;
+  }
   return new Promise<number>((resolve) => {
     const cleanups: Array<() => void> = [];
     const finish = (reason: string, code: number): void => {
@@ -36,9 +47,14 @@ export async function runUntilStopped(options: SessionOptions, io: CommandIo, st
       process.removeListener('uncaughtException', crash);
       process.removeListener('unhandledRejection', crash);
     });
-    if (stopAfterSeconds !== undefined) {
-      const timer = setTimeout(() => finish('the end', EXIT_CODES.quit), stopAfterSeconds * 1000);
-      cleanups.push(() => clearTimeout(timer));
+    if (timer !== undefined) {
+      const end = (): void => finish('the end', EXIT_CODES.quit);
+      if (stopAfter.signal.aborted) queueMicrotask(end);
+      else stopAfter.signal.addEventListener('abort', end, { once: true });
+      cleanups.push(() => {
+        clearTimeout(timer);
+        stopAfter.signal.removeEventListener('abort', end);
+      });
     }
     const stdin = process.stdin;
     if (stdin.isTTY && !options.quiet) {

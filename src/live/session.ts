@@ -5,7 +5,7 @@ import { createEngine, type EngineOptionsInput } from '../router/setup.js';
 import { channelOf, keyOfNote, sourceOf } from '../router/note-id.js';
 import type { ControlledSpeller } from '../spelling/controlled.js';
 import { UserError } from '../util/errors.js';
-import { enableMidi } from '../io/midi-system.js';
+import { enableMidi, midiSystemNote } from '../io/midi-system.js';
 import type { CommandIo } from '../util/io.js';
 import { makeStyle, wantsColour } from '../text/style.js';
 import { writeOutputFile } from '../util/files.js';
@@ -36,6 +36,15 @@ export interface SessionOptions {
   readonly onEvent?: ((event: RouterEvent) => void) | undefined;
   /** Also serve the stage page (src/page). */
   readonly page?: StagePageRequest | undefined;
+  /** Ends the wait for missing ports (`--stop-after` counts from the start, waiting included). */
+  readonly stopWaiting?: AbortSignal | undefined;
+}
+
+/** Thrown by `startSession` when `stopWaiting` fires while it still waits for a port. */
+export class StoppedWhileWaiting extends Error {
+  constructor() {
+    super('stopped while waiting for the ports');
+  }
 }
 
 /** A running performance: `stop` ends every note, then closes the log and writes the take. */
@@ -67,8 +76,11 @@ const sleep = (ms: number): Promise<void> => new Promise((resolve) => setTimeout
 export async function startSession(options: SessionOptions, io: CommandIo): Promise<Session> {
   await enableMidi({ virtualOnly: options.virtualOnly });
   if (options.wait) {
+    const note = midiSystemNote();
+    if (note) throw new UserError(`--wait: ${note.replace(/: only virtual ports$/u, '')}, so no port can appear`);
     let told = false;
     while (!Bridge.portsPresent(options.inputs, options.output)) {
+      if (options.stopWaiting?.aborted) throw new StoppedWhileWaiting();
       if (!told) io.stderr.write(`diesis: waiting for ${[...options.inputs, options.output].map((p) => `"${p}"`).join(', ')}…\n`);
       told = true;
       await sleep(250);

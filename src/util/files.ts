@@ -1,4 +1,4 @@
-import { closeSync, existsSync, fstatSync, mkdirSync, openSync, readdirSync, readSync, realpathSync, renameSync, rmSync, statSync, writeFileSync, type Stats } from 'node:fs';
+import { closeSync, existsSync, fstatSync, linkSync, mkdirSync, openSync, readdirSync, readSync, realpathSync, renameSync, rmSync, statSync, writeFileSync, type Stats } from 'node:fs';
 import { basename, dirname, extname, join, resolve, sep } from 'node:path';
 import { UserError } from './errors.js';
 
@@ -318,5 +318,31 @@ export function writeFolder(outDir: string, replacing: readonly string[], fill: 
   } catch (error) {
     rmSync(temporary, { recursive: true, force: true });
     throw new UserError(`${outDir}: cannot be written (${errnoOf(error)})`);
+  }
+}
+
+/**
+ * Writes a text file the player has agreed diesis may write (a setup `ports --learn` adds a control
+ * to), through a temporary file beside it. `create` never replaces anything: the file is linked
+ * into place, which fails if one appeared there meanwhile. `replace` renames over an existing file
+ * the player said may be changed (its mode is kept).
+ */
+export function writeAgreedText(path: string, text: string, how: 'create' | 'replace'): void {
+  const folder = statOrUndefined(dirname(resolve(path)));
+  if (!folder?.isDirectory()) throw new UserError(`${path}: the folder ${dirname(path)} does not exist`);
+  const existing = statOrUndefined(path);
+  if (how === 'create' && existing) throw new UserError(`${path}: exists already; diesis does not replace a file it was not told it may change`);
+  if (how === 'replace' && !existing?.isFile()) throw new UserError(`${path}: is not a file diesis can change`);
+  const target = how === 'replace' ? realpathSync(path) : path; // through a link, the file it names is the one changed
+  const temporary = temporaryBeside(target);
+  try {
+    writeFileSync(temporary, text, { flag: 'wx', mode: existing ? existing.mode & 0o777 : 0o644 });
+    if (how === 'create') {
+      linkSync(temporary, target);
+      rmSync(temporary, { force: true });
+    } else renameSync(temporary, target);
+  } catch (error) {
+    rmSync(temporary, { force: true });
+    throw new UserError(errnoOf(error) === 'EEXIST' ? `${path}: exists already; diesis does not replace a file it was not told it may change` : `${path}: cannot be written (${errnoOf(error)})`);
   }
 }
