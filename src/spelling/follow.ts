@@ -49,6 +49,13 @@ export interface FollowParameters {
    * 0 gives D♭ and G♭ major and E♭ minor. Once a key is known, a new key takes the name nearer it.
    */
   readonly namingCentre: number;
+  /**
+   * How many fifths sharpward a note's centre moves when the note lies a semitone below the nearest
+   * note of the group just before it (a chromatic lower neighbour: E–D♯–E, not E–E♭).
+   */
+  readonly lowerNeighbourShift: number;
+  /** Notes of the group just before count as the approach only within this many milliseconds. */
+  readonly approachMs: number;
 }
 
 /** A key as the follower estimates it: a tonic on the line of fifths and a mode. */
@@ -71,6 +78,8 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   keySoftness: 0.2,
   windowReach: 3,
   namingCentre: 4,
+  lowerNeighbourShift: 1,
+  approachMs: 600,
 };
 
 /**
@@ -154,6 +163,9 @@ export class FollowSpeller implements Speller {
   private guessing = true;
   /** Notes heard (time-decayed like the chroma weights). */
   private heard = 0;
+  /** The keys of the group spelled last and when it began: the approach of the next notes. */
+  private lastKeys: number[] = [];
+  private lastOnset = -Infinity;
 
   constructor(private readonly p: FollowParameters = DEFAULT_FOLLOW) {
     this.current = p.initialKey ?? GUESS;
@@ -348,7 +360,10 @@ export class FollowSpeller implements Speller {
     }
     // The whole group counts before any of it is spelled, and it is spelled as one chord.
     const centre = this.centre();
-    const fifths = this.spellChord(notes, centre);
+    const centres = notes.map((n) => centre + this.approachShift(n));
+    this.lastKeys = notes.map((n) => n.key);
+    this.lastOnset = notes[0]!.time;
+    const fifths = this.spellChord(notes, centres);
     return notes.map((n, i) => {
       this.held.set(noteId(n), mod(n.key, 12));
       const f = this.withinReach(fifths[i]!);
@@ -363,21 +378,37 @@ export class FollowSpeller implements Speller {
   }
 
   /**
-   * Line-of-fifths positions for a chord: each note's spelling nearest `centre`, or, where the
+   * The shift of a note's centre from how it is approached: a chromatic note reached by a falling
+   * semitone is most often a lower neighbour or an appoggiatura that returns upwards (E–D♯–E,
+   * A–G♯–A), written as the raised letter below; it leans sharpward by `lowerNeighbourShift`. Causal:
+   * only the approach is known, not the resolution (the melodic side of Cambouropoulos's interval
+   * spelling, and of Meredith's ps13 stage 2, reduced to what has been heard).
+   */
+  private approachShift(note: NoteContext): number {
+    if (this.p.lowerNeighbourShift === 0 || note.time - this.lastOnset > this.p.approachMs) return 0;
+    let step = Infinity;
+    for (const k of this.lastKeys) if (Math.abs(k - note.key) < Math.abs(step)) step = k - note.key;
+    return step === 1 ? this.p.lowerNeighbourShift : 0;
+  }
+
+  /**
+   * Line-of-fifths positions for a chord: each note's spelling nearest its centre, or, where the
    * chord has two or more chromas, the set (each note nearest the centre or one enharmonic step
-   * beyond) that minimises the distance from the centre plus `chordCompactness` times the chord's
+   * beyond) that minimises the distance from each note's centre plus `chordCompactness` times the chord's
    * spread on the line of fifths.
    */
-  private spellChord(notes: readonly NoteContext[], centre: number): number[] {
-    const nearest = notes.map((n) => nearestFifths(mod(n.key, 12), centre));
+  private spellChord(notes: readonly NoteContext[], centres: readonly number[]): number[] {
+    const nearest = notes.map((n, i) => nearestFifths(mod(n.key, 12), centres[i]!));
     if (notes.length < 2 || this.p.chordCompactness === 0) return nearest;
     const chromas: number[] = [];
     const near: number[] = [];
+    const centreOf: number[] = [];
     for (let i = 0; i < notes.length; i++) {
       const chroma = mod(notes[i]!.key, 12);
       if (!chromas.includes(chroma)) {
         chromas.push(chroma);
         near.push(nearest[i]!);
+        centreOf.push(centres[i]!);
       }
     }
     if (chromas.length < 2 || chromas.length > 8) return nearest;
@@ -393,10 +424,10 @@ export class FollowSpeller implements Speller {
       let hi = -Infinity;
       let distance = 0;
       for (let i = 0; i < chromas.length; i++) {
-        const f = (mask >> i) & 1 ? alternative(near[i]!, centre) : near[i]!;
+        const f = (mask >> i) & 1 ? alternative(near[i]!, centreOf[i]!) : near[i]!;
         if (f < lo) lo = f;
         if (f > hi) hi = f;
-        distance += Math.abs(f - centre);
+        distance += Math.abs(f - centreOf[i]!);
       }
       const spread = hi - lo;
       const cost = distance + this.p.chordCompactness * spread;
@@ -416,7 +447,7 @@ export class FollowSpeller implements Speller {
     if (bestMask === 0) return nearest;
     return notes.map((n) => {
       const i = chromas.indexOf(mod(n.key, 12));
-      return (bestMask >> i) & 1 ? alternative(near[i]!, centre) : near[i]!;
+      return (bestMask >> i) & 1 ? alternative(near[i]!, centreOf[i]!) : near[i]!;
     });
   }
 
