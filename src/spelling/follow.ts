@@ -56,6 +56,12 @@ export interface FollowParameters {
   readonly lowerNeighbourShift: number;
   /** Notes of the group just before count as the approach only within this many milliseconds. */
   readonly approachMs: number;
+  /**
+   * How many fifths a note's centre moves towards the way its key last moved on by a semitone
+   * (sharpward if up, flatward if down), within `resolutionMs` of that move.
+   */
+  readonly resolutionShift: number;
+  readonly resolutionMs: number;
 }
 
 /** A key as the follower estimates it: a tonic on the line of fifths and a mode. */
@@ -80,6 +86,8 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   namingCentre: 4,
   lowerNeighbourShift: 1,
   approachMs: 600,
+  resolutionShift: 1,
+  resolutionMs: 4000,
 };
 
 /**
@@ -166,6 +174,9 @@ export class FollowSpeller implements Speller {
   /** The keys of the group spelled last and when it began: the approach of the next notes. */
   private lastKeys: number[] = [];
   private lastOnset = -Infinity;
+  /** Per chroma: +1 when it last moved up a semitone to the next note, −1 down; and when. */
+  private readonly resolvedDir = new Float64Array(12);
+  private readonly resolvedT = new Float64Array(12).fill(-Infinity);
 
   constructor(private readonly p: FollowParameters = DEFAULT_FOLLOW) {
     this.current = p.initialKey ?? GUESS;
@@ -360,10 +371,20 @@ export class FollowSpeller implements Speller {
     }
     // The whole group counts before any of it is spelled, and it is spelled as one chord.
     const centre = this.centre();
-    const centres = notes.map((n) => centre + this.approachShift(n));
+    const steps = notes.map((n) => this.stepFrom(n));
+    const centres = notes.map((n, i) => centre + this.approachShift(steps[i]!) + this.resolutionShift(n));
     this.lastKeys = notes.map((n) => n.key);
     this.lastOnset = notes[0]!.time;
     const fifths = this.spellChord(notes, centres);
+    // How each note of the group just before moved on, remembered for its key's next return.
+    if (!this.frozen)
+      notes.forEach((n, i) => {
+        const step = steps[i]!;
+        if (step !== 1 && step !== -1) return;
+        const from = mod(n.key - step, 12);
+        this.resolvedDir[from] = step;
+        this.resolvedT[from] = n.time;
+      });
     return notes.map((n, i) => {
       this.held.set(noteId(n), mod(n.key, 12));
       const f = this.withinReach(fifths[i]!);
@@ -384,11 +405,29 @@ export class FollowSpeller implements Speller {
    * only the approach is known, not the resolution (the melodic side of Cambouropoulos's interval
    * spelling, and of Meredith's ps13 stage 2, reduced to what has been heard).
    */
-  private approachShift(note: NoteContext): number {
-    if (this.p.lowerNeighbourShift === 0 || note.time - this.lastOnset > this.p.approachMs) return 0;
+  private approachShift(step: number): number {
+    return step === -1 ? this.p.lowerNeighbourShift : 0;
+  }
+
+  /** Semitones from the nearest note of the group just before (within `approachMs`), or Infinity. */
+  private stepFrom(note: NoteContext): number {
+    if (note.time - this.lastOnset > this.p.approachMs) return Infinity;
     let step = Infinity;
-    for (const k of this.lastKeys) if (Math.abs(k - note.key) < Math.abs(step)) step = k - note.key;
-    return step === 1 ? this.p.lowerNeighbourShift : 0;
+    for (const k of this.lastKeys) if (Math.abs(note.key - k) < Math.abs(step)) step = note.key - k;
+    return step;
+  }
+
+  /**
+   * The shift of a note's centre from how its key last moved on: a chromatic note that went up a
+   * semitone (D♯–E) was a leading tone, one that went down (E♭–D) a lowered degree, and a figure
+   * that comes back usually comes back in the same role. The resolution is heard only after the
+   * note, so it is remembered for the key's next return (causal; the resolution rule of Meredith's
+   * ps13 stage 2 and Cambouropoulos's interval spelling look ahead instead).
+   */
+  private resolutionShift(note: NoteContext): number {
+    const c = mod(note.key, 12);
+    if (this.p.resolutionShift === 0 || note.time - this.resolvedT[c]! > this.p.resolutionMs) return 0;
+    return this.p.resolutionShift * this.resolvedDir[c]!;
   }
 
   /**

@@ -88,6 +88,17 @@ describe('follow: spelling from the harmony heard', () => {
     expect(play(other, [['C5'], ['D#5'], ['D5']], 250).map((c) => c[0])).toEqual(['C5', 'Eb5', 'D5']);
   });
 
+  it('remembers how a chromatic note moved on: a figure that returns takes the same spelling', () => {
+    // Our own figure in C major: G–(D♯/E♭)–E, the middle note reached by a leap. Heard first, it
+    // can only be spelled from the key (E♭, the nearer); once it has gone up to E it was a leading
+    // tone, and when the figure returns it is D♯ (common practice, no source).
+    const speller = follow();
+    play(speller, [['C3', 'E4', 'G4'], ['F3', 'A4', 'C5'], ['G3', 'B4', 'D5'], ['C3', 'E4', 'G4']]);
+    const figure = () => play(speller, [['G4'], ['D#5'], ['E5']], 250).map((c) => c[0]);
+    expect(figure()).toEqual(['G4', 'Eb5', 'E5']);
+    expect(figure()).toEqual(['G4', 'D#5', 'E5']);
+  });
+
   it('keeps its key when frozen, and jumps when told a key', () => {
     const speller = follow();
     speller.setKey(parseKey('Eb major'));
