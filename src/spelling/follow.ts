@@ -62,6 +62,14 @@ export interface FollowParameters {
    */
   readonly resolutionShift: number;
   readonly resolutionMs: number;
+  /**
+   * A second, short-memory key estimate (chroma weights halving every `shortHalfLifeMs`) whose soft
+   * window centre moves the key's by `shortShare` (0…1): a passing tonicisation (V of vi) moves the
+   * spelling before the long estimate changes key. After Chew and Chen's real-time spelling on the
+   * spiral array, which combines a cumulative and a sliding window.
+   */
+  readonly shortHalfLifeMs: number;
+  readonly shortShare: number;
 }
 
 /** A key as the follower estimates it: a tonic on the line of fifths and a mode. */
@@ -88,6 +96,8 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   approachMs: 600,
   resolutionShift: 1,
   resolutionMs: 4000,
+  shortHalfLifeMs: 1000,
+  shortShare: 0.3,
 };
 
 /**
@@ -155,6 +165,7 @@ const MODES = ['major', 'minor'] as const;
  */
 export class FollowSpeller implements Speller {
   private readonly weights = new Float64Array(12);
+  private readonly shortWeights = new Float64Array(12);
   private lastTime = 0;
   private current: Key;
   private readonly held = new Map<number, number>();
@@ -192,6 +203,7 @@ export class FollowSpeller implements Speller {
     const tonicChroma = chromaAt(key.tonic);
     const total = profile.reduce((a, b) => a + b, 0);
     profile.forEach((v, i) => (this.weights[(tonicChroma + i) % 12] = (this.p.initialWeight * v) / total));
+    this.shortWeights.set(this.weights);
     this.localWeight = 0;
     this.chromaT.fill(-Infinity);
     this.softCentre = NaN;
@@ -232,6 +244,8 @@ export class FollowSpeller implements Speller {
     if (time > this.lastTime) {
       const factor = 0.5 ** ((time - this.lastTime) / this.p.halfLifeMs);
       for (let i = 0; i < 12; i++) this.weights[i]! *= factor;
+      const shortFactor = 0.5 ** ((time - this.lastTime) / this.p.shortHalfLifeMs);
+      for (let i = 0; i < 12; i++) this.shortWeights[i]! *= shortFactor;
       this.heard *= factor;
       this.lastTime = time;
     }
@@ -268,9 +282,10 @@ export class FollowSpeller implements Speller {
     return this.p.homeStrength * Math.abs(windowCentreOf(key) - this.homeCentre);
   }
 
-  private update(): void {
+  /** Fills `scratch` with `weights` plus the held notes, centred; returns its length. */
+  private centred(weights: Float64Array): number {
     const w = this.scratch;
-    for (let i = 0; i < 12; i++) w[i] = this.weights[i]!;
+    for (let i = 0; i < 12; i++) w[i] = weights[i]!;
     for (const chroma of this.held.values()) w[chroma]! += this.p.heldWeight;
     let mean = 0;
     for (let i = 0; i < 12; i++) mean += w[i]!;
@@ -280,7 +295,29 @@ export class FollowSpeller implements Speller {
       w[i]! -= mean;
       norm += w[i]! * w[i]!;
     }
-    norm = Math.sqrt(norm);
+    return Math.sqrt(norm);
+  }
+
+  /** The soft window centre of the keys, from the weights in `scratch` (see `softCentre`). */
+  private softOf(norm: number): number {
+    const scores = this.scores;
+    let top = -Infinity;
+    this.candidates.forEach((key, i) => {
+      scores[i] = this.correlation(chromaAt(key.tonic), key.mode, norm) - this.homeCost(key);
+      if (scores[i]! > top) top = scores[i]!;
+    });
+    let sum = 0;
+    let weight = 0;
+    this.candidates.forEach((key, i) => {
+      const w = Math.exp((scores[i]! - top) / this.p.keySoftness);
+      sum += w * windowCentreOf(key);
+      weight += w;
+    });
+    return sum / weight;
+  }
+
+  private update(): void {
+    const norm = this.centred(this.weights);
     const currentScore = this.correlation(chromaAt(this.current.tonic), this.current.mode, norm) - this.homeCost(this.current);
     if (this.candidatesFor !== this.current || this.candidatesGuessing !== this.guessing) {
       this.candidatesGuessing = this.guessing;
@@ -309,6 +346,10 @@ export class FollowSpeller implements Speller {
         weight += w;
       });
       this.softCentre = sum / weight;
+      if (this.p.shortShare > 0) {
+        const short = this.softOf(this.centred(this.shortWeights));
+        this.softCentre += this.p.shortShare * (short - this.softCentre);
+      }
     }
     // A guessed start gives way only once as many notes have been heard as it counts for.
     if (this.guessing && this.heard < this.p.initialWeight) return;
@@ -365,7 +406,10 @@ export class FollowSpeller implements Speller {
     if (notes.length === 0) return [];
     if (!this.frozen) {
       this.decayTo(notes[0]!.time);
-      for (const n of notes) this.weights[mod(n.key, 12)]! += 1;
+      for (const n of notes) {
+        this.weights[mod(n.key, 12)]! += 1;
+        this.shortWeights[mod(n.key, 12)]! += 1;
+      }
       this.heard += notes.length;
       this.update();
     }
