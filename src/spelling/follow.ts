@@ -206,6 +206,7 @@ export class FollowSpeller implements Speller {
     this.shortWeights.set(this.weights);
     this.localWeight = 0;
     this.chromaT.fill(-Infinity);
+    this.resolvedT.fill(-Infinity);
     this.softCentre = NaN;
   }
 
