@@ -49,6 +49,27 @@ export interface FollowParameters {
    * 0 gives D♭ and G♭ major and E♭ minor. Once a key is known, a new key takes the name nearer it.
    */
   readonly namingCentre: number;
+  /**
+   * How many fifths sharpward a note's centre moves when the note lies a semitone below the nearest
+   * note of the group just before it (a chromatic lower neighbour: E–D♯–E, not E–E♭).
+   */
+  readonly lowerNeighbourShift: number;
+  /** Notes of the group just before count as the approach only within this many milliseconds. */
+  readonly approachMs: number;
+  /**
+   * How many fifths a note's centre moves towards the way its key last moved on by a semitone
+   * (sharpward if up, flatward if down), within `resolutionMs` of that move.
+   */
+  readonly resolutionShift: number;
+  readonly resolutionMs: number;
+  /**
+   * A second, short-memory key estimate (chroma weights halving every `shortHalfLifeMs`) whose soft
+   * window centre moves the key's by `shortShare` (0…1): a passing tonicisation (V of vi) moves the
+   * spelling before the long estimate changes key. After Chew and Chen's real-time spelling on the
+   * spiral array, which combines a cumulative and a sliding window.
+   */
+  readonly shortHalfLifeMs: number;
+  readonly shortShare: number;
 }
 
 /** A key as the follower estimates it: a tonic on the line of fifths and a mode. */
@@ -71,6 +92,12 @@ export const DEFAULT_FOLLOW: FollowParameters = {
   keySoftness: 0.2,
   windowReach: 3,
   namingCentre: 4,
+  lowerNeighbourShift: 1,
+  approachMs: 600,
+  resolutionShift: 1,
+  resolutionMs: 4000,
+  shortHalfLifeMs: 1000,
+  shortShare: 0.3,
 };
 
 /**
@@ -138,6 +165,7 @@ const MODES = ['major', 'minor'] as const;
  */
 export class FollowSpeller implements Speller {
   private readonly weights = new Float64Array(12);
+  private readonly shortWeights = new Float64Array(12);
   private lastTime = 0;
   private current: Key;
   private readonly held = new Map<number, number>();
@@ -154,6 +182,12 @@ export class FollowSpeller implements Speller {
   private guessing = true;
   /** Notes heard (time-decayed like the chroma weights). */
   private heard = 0;
+  /** The keys of the group spelled last and when it began: the approach of the next notes. */
+  private lastKeys: number[] = [];
+  private lastOnset = -Infinity;
+  /** Per chroma: +1 when it last moved up a semitone to the next note, −1 down; and when. */
+  private readonly resolvedDir = new Float64Array(12);
+  private readonly resolvedT = new Float64Array(12).fill(-Infinity);
 
   constructor(private readonly p: FollowParameters = DEFAULT_FOLLOW) {
     this.current = p.initialKey ?? GUESS;
@@ -169,8 +203,10 @@ export class FollowSpeller implements Speller {
     const tonicChroma = chromaAt(key.tonic);
     const total = profile.reduce((a, b) => a + b, 0);
     profile.forEach((v, i) => (this.weights[(tonicChroma + i) % 12] = (this.p.initialWeight * v) / total));
+    this.shortWeights.set(this.weights);
     this.localWeight = 0;
     this.chromaT.fill(-Infinity);
+    this.resolvedT.fill(-Infinity);
     this.softCentre = NaN;
   }
 
@@ -209,6 +245,8 @@ export class FollowSpeller implements Speller {
     if (time > this.lastTime) {
       const factor = 0.5 ** ((time - this.lastTime) / this.p.halfLifeMs);
       for (let i = 0; i < 12; i++) this.weights[i]! *= factor;
+      const shortFactor = 0.5 ** ((time - this.lastTime) / this.p.shortHalfLifeMs);
+      for (let i = 0; i < 12; i++) this.shortWeights[i]! *= shortFactor;
       this.heard *= factor;
       this.lastTime = time;
     }
@@ -245,9 +283,10 @@ export class FollowSpeller implements Speller {
     return this.p.homeStrength * Math.abs(windowCentreOf(key) - this.homeCentre);
   }
 
-  private update(): void {
+  /** Fills `scratch` with `weights` plus the held notes, centred; returns its length. */
+  private centred(weights: Float64Array): number {
     const w = this.scratch;
-    for (let i = 0; i < 12; i++) w[i] = this.weights[i]!;
+    for (let i = 0; i < 12; i++) w[i] = weights[i]!;
     for (const chroma of this.held.values()) w[chroma]! += this.p.heldWeight;
     let mean = 0;
     for (let i = 0; i < 12; i++) mean += w[i]!;
@@ -257,7 +296,29 @@ export class FollowSpeller implements Speller {
       w[i]! -= mean;
       norm += w[i]! * w[i]!;
     }
-    norm = Math.sqrt(norm);
+    return Math.sqrt(norm);
+  }
+
+  /** The soft window centre of the keys, from the weights in `scratch` (see `softCentre`). */
+  private softOf(norm: number): number {
+    const scores = this.scores;
+    let top = -Infinity;
+    this.candidates.forEach((key, i) => {
+      scores[i] = this.correlation(chromaAt(key.tonic), key.mode, norm) - this.homeCost(key);
+      if (scores[i]! > top) top = scores[i]!;
+    });
+    let sum = 0;
+    let weight = 0;
+    this.candidates.forEach((key, i) => {
+      const w = Math.exp((scores[i]! - top) / this.p.keySoftness);
+      sum += w * windowCentreOf(key);
+      weight += w;
+    });
+    return sum / weight;
+  }
+
+  private update(): void {
+    const norm = this.centred(this.weights);
     const currentScore = this.correlation(chromaAt(this.current.tonic), this.current.mode, norm) - this.homeCost(this.current);
     if (this.candidatesFor !== this.current || this.candidatesGuessing !== this.guessing) {
       this.candidatesGuessing = this.guessing;
@@ -286,6 +347,10 @@ export class FollowSpeller implements Speller {
         weight += w;
       });
       this.softCentre = sum / weight;
+      if (this.p.shortShare > 0) {
+        const short = this.softOf(this.centred(this.shortWeights));
+        this.softCentre += this.p.shortShare * (short - this.softCentre);
+      }
     }
     // A guessed start gives way only once as many notes have been heard as it counts for.
     if (this.guessing && this.heard < this.p.initialWeight) return;
@@ -342,13 +407,29 @@ export class FollowSpeller implements Speller {
     if (notes.length === 0) return [];
     if (!this.frozen) {
       this.decayTo(notes[0]!.time);
-      for (const n of notes) this.weights[mod(n.key, 12)]! += 1;
+      for (const n of notes) {
+        this.weights[mod(n.key, 12)]! += 1;
+        this.shortWeights[mod(n.key, 12)]! += 1;
+      }
       this.heard += notes.length;
       this.update();
     }
     // The whole group counts before any of it is spelled, and it is spelled as one chord.
     const centre = this.centre();
-    const fifths = this.spellChord(notes, centre);
+    const steps = notes.map((n) => this.stepFrom(n));
+    const centres = notes.map((n, i) => centre + this.approachShift(steps[i]!) + this.resolutionShift(n));
+    this.lastKeys = notes.map((n) => n.key);
+    this.lastOnset = notes[0]!.time;
+    const fifths = this.spellChord(notes, centres);
+    // How each note of the group just before moved on, remembered for its key's next return.
+    if (!this.frozen)
+      notes.forEach((n, i) => {
+        const step = steps[i]!;
+        if (step !== 1 && step !== -1) return;
+        const from = mod(n.key - step, 12);
+        this.resolvedDir[from] = step;
+        this.resolvedT[from] = n.time;
+      });
     return notes.map((n, i) => {
       this.held.set(noteId(n), mod(n.key, 12));
       const f = this.withinReach(fifths[i]!);
@@ -363,21 +444,55 @@ export class FollowSpeller implements Speller {
   }
 
   /**
-   * Line-of-fifths positions for a chord: each note's spelling nearest `centre`, or, where the
+   * The shift of a note's centre from how it is approached: a chromatic note reached by a falling
+   * semitone is most often a lower neighbour or an appoggiatura that returns upwards (E–D♯–E,
+   * A–G♯–A), written as the raised letter below; it leans sharpward by `lowerNeighbourShift`. Causal:
+   * only the approach is known, not the resolution (the melodic side of Cambouropoulos's interval
+   * spelling, and of Meredith's ps13 stage 2, reduced to what has been heard).
+   */
+  private approachShift(step: number): number {
+    return step === -1 ? this.p.lowerNeighbourShift : 0;
+  }
+
+  /** Semitones from the nearest note of the group just before (within `approachMs`), or Infinity. */
+  private stepFrom(note: NoteContext): number {
+    if (note.time - this.lastOnset > this.p.approachMs) return Infinity;
+    let step = Infinity;
+    for (const k of this.lastKeys) if (Math.abs(note.key - k) < Math.abs(step)) step = note.key - k;
+    return step;
+  }
+
+  /**
+   * The shift of a note's centre from how its key last moved on: a chromatic note that went up a
+   * semitone (D♯–E) was a leading tone, one that went down (E♭–D) a lowered degree, and a figure
+   * that comes back usually comes back in the same role. The resolution is heard only after the
+   * note, so it is remembered for the key's next return (causal; the resolution rule of Meredith's
+   * ps13 stage 2 and Cambouropoulos's interval spelling look ahead instead).
+   */
+  private resolutionShift(note: NoteContext): number {
+    const c = mod(note.key, 12);
+    if (this.p.resolutionShift === 0 || note.time - this.resolvedT[c]! > this.p.resolutionMs) return 0;
+    return this.p.resolutionShift * this.resolvedDir[c]!;
+  }
+
+  /**
+   * Line-of-fifths positions for a chord: each note's spelling nearest its centre, or, where the
    * chord has two or more chromas, the set (each note nearest the centre or one enharmonic step
-   * beyond) that minimises the distance from the centre plus `chordCompactness` times the chord's
+   * beyond) that minimises the distance from each note's centre plus `chordCompactness` times the chord's
    * spread on the line of fifths.
    */
-  private spellChord(notes: readonly NoteContext[], centre: number): number[] {
-    const nearest = notes.map((n) => nearestFifths(mod(n.key, 12), centre));
+  private spellChord(notes: readonly NoteContext[], centres: readonly number[]): number[] {
+    const nearest = notes.map((n, i) => nearestFifths(mod(n.key, 12), centres[i]!));
     if (notes.length < 2 || this.p.chordCompactness === 0) return nearest;
     const chromas: number[] = [];
     const near: number[] = [];
+    const centreOf: number[] = [];
     for (let i = 0; i < notes.length; i++) {
       const chroma = mod(notes[i]!.key, 12);
       if (!chromas.includes(chroma)) {
         chromas.push(chroma);
         near.push(nearest[i]!);
+        centreOf.push(centres[i]!);
       }
     }
     if (chromas.length < 2 || chromas.length > 8) return nearest;
@@ -393,10 +508,10 @@ export class FollowSpeller implements Speller {
       let hi = -Infinity;
       let distance = 0;
       for (let i = 0; i < chromas.length; i++) {
-        const f = (mask >> i) & 1 ? alternative(near[i]!, centre) : near[i]!;
+        const f = (mask >> i) & 1 ? alternative(near[i]!, centreOf[i]!) : near[i]!;
         if (f < lo) lo = f;
         if (f > hi) hi = f;
-        distance += Math.abs(f - centre);
+        distance += Math.abs(f - centreOf[i]!);
       }
       const spread = hi - lo;
       const cost = distance + this.p.chordCompactness * spread;
@@ -416,7 +531,7 @@ export class FollowSpeller implements Speller {
     if (bestMask === 0) return nearest;
     return notes.map((n) => {
       const i = chromas.indexOf(mod(n.key, 12));
-      return (bestMask >> i) & 1 ? alternative(near[i]!, centre) : near[i]!;
+      return (bestMask >> i) & 1 ? alternative(near[i]!, centreOf[i]!) : near[i]!;
     });
   }
 

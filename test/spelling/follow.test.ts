@@ -76,6 +76,29 @@ describe('follow: spelling from the harmony heard', () => {
     expect(play(speller, [['F3', 'A3', 'C4']])[0]).toEqual(['F3', 'A3', 'C4']);
   });
 
+  it('spells a chromatic lower neighbour reached by a falling semitone as the raised letter below', () => {
+    // Our own phrase in C major: a tune that dips from E to the note below and back (E–D♯–E), the
+    // way a chromatic neighbour is written (common practice, no source); the same key reached by a
+    // leap stays E♭, the chromatic third of C minor.
+    const speller = follow();
+    play(speller, [['C3', 'E4', 'G4'], ['F3', 'A4', 'C5'], ['G3', 'B4', 'D5'], ['C3', 'E4', 'G4']]);
+    expect(play(speller, [['E5'], ['Eb5'], ['E5']], 250).map((c) => c[0])).toEqual(['E5', 'D#5', 'E5']);
+    const other = follow();
+    play(other, [['C3', 'E4', 'G4'], ['F3', 'A4', 'C5'], ['G3', 'B4', 'D5'], ['C3', 'E4', 'G4']]);
+    expect(play(other, [['C5'], ['D#5'], ['D5']], 250).map((c) => c[0])).toEqual(['C5', 'Eb5', 'D5']);
+  });
+
+  it('remembers how a chromatic note moved on: a figure that returns takes the same spelling', () => {
+    // Our own figure in C major: G–(D♯/E♭)–E, the middle note reached by a leap. Heard first, it
+    // can only be spelled from the key (E♭, the nearer); once it has gone up to E it was a leading
+    // tone, and when the figure returns it is D♯ (common practice, no source).
+    const speller = follow();
+    play(speller, [['C3', 'E4', 'G4'], ['F3', 'A4', 'C5'], ['G3', 'B4', 'D5'], ['C3', 'E4', 'G4']]);
+    const figure = () => play(speller, [['G4'], ['D#5'], ['E5']], 250).map((c) => c[0]);
+    expect(figure()).toEqual(['G4', 'Eb5', 'E5']);
+    expect(figure()).toEqual(['G4', 'D#5', 'E5']);
+  });
+
   it('keeps its key when frozen, and jumps when told a key', () => {
     const speller = follow();
     speller.setKey(parseKey('Eb major'));
