@@ -119,3 +119,11 @@ describe('diesis presets and check', () => {
     ]);
   });
 });
+
+describe('chart options that exclude each other', () => {
+  it('refuses --json with --csv, in one line, as a usage mistake', async () => {
+    const both = await runCli('chart', 'meantone-1-4', '--json', '--csv');
+    expect(both.code).toBe(2);
+    expect(both.stderr.trim()).toBe('diesis: --json and --csv each print the whole chart: give one of them');
+  });
+});

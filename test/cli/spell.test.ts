@@ -69,3 +69,31 @@ describe('diesis spell', () => {
     expect(bad.stderr).toMatch(/bad-tuning\.json:\d+: kind: this is a tuning file, not a setup/u);
   });
 });
+
+describe('--gather applies to files as it does live', () => {
+  it('a chord spread over a few milliseconds is spelled as one chord with --gather, not note by note', async () => {
+    const { writeMidiFile } = await import('../../src/render/smf.js');
+    const { writeFileSync } = await import('node:fs');
+    const { tempDir } = await import('../support/temp.js');
+    // Our own phrase: A minor, its dominant, A minor, then an F minor triad rolled over 25 ms (480 ticks a beat, 500 ms a beat).
+    const events: Array<{ tick: number; data: number[] }> = [];
+    let tick = 0;
+    const chord = (keys: number[], spread = 0): void => {
+      keys.forEach((k, i) => events.push({ tick: tick + i * spread, data: [0x90, k, 80] }));
+      keys.forEach((k) => events.push({ tick: tick + 470, data: [0x80, k, 0] }));
+      tick += 480;
+    };
+    chord([57, 60, 64]);
+    chord([52, 56, 59, 62]);
+    chord([57, 60, 64]);
+    chord([53, 56, 60], 12);
+    events.sort((a, b) => a.tick - b.tick);
+    const file = join(tempDir('diesis-gather-'), 'rolled.mid');
+    writeFileSync(file, writeMidiFile({ ticksPerBeat: 480 }, [], [events]));
+    const last = async (...args: string[]): Promise<string[]> =>
+      (await runCli('spell', file, '--json', ...args)).stdout.trim().split('\n').slice(-3).map((l) => (JSON.parse(l) as Row).spelling);
+    // An F minor triad is F–A♭–C (common practice, no source); one note at a time, A♭ after A minor's G♯ reads as G♯.
+    expect(await last('--gather', '30')).toEqual(['F3', 'Ab3', 'C4']);
+    expect(await last()).toEqual(['F3', 'G#3', 'C4']);
+  });
+});
