@@ -4,7 +4,7 @@ import { renderEvents } from '../render/render-midi.js';
 import { readMidiFile } from '../render/smf.js';
 import { SpellReport } from '../render/spell-report.js';
 import { createEngine } from '../router/setup.js';
-import { channelOf, keyOfNote, sourceOf } from '../router/note-id.js';
+import { channelOf, keyOfNote, sourceOf } from '../midi/note-id.js';
 import { DEFAULT_WOLF_LIMITS } from '../tuning/index.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import type { CommandIo } from '../util/io.js';

@@ -1,7 +1,7 @@
 import { formatPitchClass, formatRange, formatSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
 import type { RouterEvent } from '../router/events.js';
-import type { NoteId } from '../router/note-id.js';
-import { channelOf, keyOfNote, sourceOf } from '../router/note-id.js';
+import type { NoteId } from '../midi/note-id.js';
+import { channelOf, keyOfNote, sourceOf } from '../midi/note-id.js';
 import type { Tally } from '../router/tally.js';
 import type { ControlledSpeller } from '../spelling/controlled.js';
 import { formatChannels } from '../text/channels.js';

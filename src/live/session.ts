@@ -2,7 +2,7 @@ import { createWriteStream, type WriteStream } from 'node:fs';
 import { formatSpelledPitch } from '../pitch/index.js';
 import type { RouterEvent } from '../router/router.js';
 import { createEngine, type EngineOptionsInput } from '../router/setup.js';
-import { channelOf, keyOfNote, sourceOf } from '../router/note-id.js';
+import { channelOf, keyOfNote, sourceOf } from '../midi/note-id.js';
 import type { ControlledSpeller } from '../spelling/controlled.js';
 import { UserError } from '../util/errors.js';
 import { enableMidi, midiSystemNote } from '../io/midi-system.js';

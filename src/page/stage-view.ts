@@ -1,6 +1,6 @@
 import { formatPitchClass, formatRange, formatSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
 import type { Router, RouterEvent } from '../router/router.js';
-import { keyOfNote, type NoteId } from '../router/note-id.js';
+import { keyOfNote, type NoteId } from '../midi/note-id.js';
 import type { ControlledSpeller } from '../spelling/controlled.js';
 import { equalTemperedDeviation, formatReference, type Reference, type Tuning } from '../tuning/index.js';
 import type { StageKey, StageNote, StagePiece, StageState, StageWarning } from './stage-state.js';

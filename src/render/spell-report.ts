@@ -1,6 +1,6 @@
 import { chromaOf, formatPitchClass, formatSpelledPitch, nearestSpelling, pitchClass, type NameStyle, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import type { NoteEvent } from '../router/events.js';
-import { channelOf, keyOfNote, type NoteId } from '../router/note-id.js';
+import { channelOf, keyOfNote, type NoteId } from '../midi/note-id.js';
 import { PURE_FIFTH_INTERVAL, PURE_MAJOR_THIRD, pureCents, type PureInterval, type WolfLimits } from '../tuning/index.js';
 import { signed } from '../text/table.js';
 import { mod } from '../util/errors.js';

@@ -1,7 +1,7 @@
 import { keyOf, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import { AdaptiveTuner, synthOffset } from '../tuning/adaptive/index.js';
 import type { AdaptiveJustTuning, Reference } from '../tuning/index.js';
-import type { NoteId } from './note-id.js';
+import type { NoteId } from '../midi/note-id.js';
 import type { TunedNote } from './pitch-table.js';
 
 /** A note tuned by the harmony: what the outputs need, and how it sits against the fixed table. */

@@ -1,4 +1,4 @@
-import type { NoteId } from './note-id.js';
+import type { NoteId } from '../midi/note-id.js';
 
 /**
  * How note-ons are gathered into chords before spelling: a number of milliseconds to wait for the

@@ -9,7 +9,7 @@ import type { AdaptedTunedNote, AdaptivePitches } from './adaptive-pitches.js';
 import { ChordGatherer, type GatherSetting } from './chord-gatherer.js';
 import type { RouterEvent } from './events.js';
 import { isParameterController, KeyboardState } from './keyboard-state.js';
-import { channelOf, keyOfNote, noteId, sourceOf, type NoteId } from './note-id.js';
+import { channelOf, keyOfNote, noteId, sourceOf, type NoteId } from '../midi/note-id.js';
 import type { OutputContext, OutputStrategy } from './output.js';
 import type { PitchTable } from './pitch-table.js';
 import { planRespelling } from './respell.js';

@@ -1,5 +1,5 @@
 import type { SpelledPitch } from '../pitch/index.js';
-import { sourceOf, type NoteId } from './note-id.js';
+import { sourceOf, type NoteId } from '../midi/note-id.js';
 import type { Placement } from './output.js';
 
 /**

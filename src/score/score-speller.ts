@@ -1,6 +1,6 @@
 import type { KeyboardWindow, PitchClass, SpelledPitch } from '../pitch/index.js';
 import type { DeclaredKey } from '../spelling/keys.js';
-import type { NoteContext, Speller } from '../spelling/speller.js';
+import { noteIdOf, type NoteContext, type Speller } from '../spelling/speller.js';
 import { DEFAULT_FOLLOWER, ScoreFollower, type FollowerParameters, type MatchKind } from './follower.js';
 import type { Score } from './score.js';
 
@@ -18,7 +18,6 @@ export interface NoteMatch {
 
 export type MatchCounts = Record<MatchKind, number>;
 
-const noteId = (n: NoteContext): number => n.source * 2048 + n.channel * 128 + n.key;
 
 /**
  * Spells from the score: each note takes the spelling of the written note the follower matches
@@ -52,7 +51,7 @@ export class ScoreSpeller implements Speller {
       const record: NoteMatch = { key: note.key, channel: note.channel, source: note.source, time: note.time, bar: measure ? measure.number : null, match: result.kind, pitch };
       this.counts[result.kind]++;
       this.last.push(record);
-      this.held.set(noteId(note), pitch);
+      this.held.set(noteIdOf(note), pitch);
       this.onMatch?.(record);
       return pitch;
     });
@@ -64,11 +63,11 @@ export class ScoreSpeller implements Speller {
   }
 
   peek(note: NoteContext): SpelledPitch {
-    return this.held.get(noteId(note)) ?? this.follower.implied(note.key) ?? this.fallback.peek(note);
+    return this.held.get(noteIdOf(note)) ?? this.follower.implied(note.key) ?? this.fallback.peek(note);
   }
 
   noteOff(note: NoteContext): void {
-    this.held.delete(noteId(note));
+    this.held.delete(noteIdOf(note));
     this.fallback.noteOff(note);
   }
 

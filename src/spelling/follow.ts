@@ -1,7 +1,7 @@
 import { DEFAULT_WINDOW, keyboardWindow, onKey, pitchClass, type KeyboardWindow, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import { isMajorLike, type DeclaredKey } from './keys.js';
 import { mod } from '../util/errors.js';
-import type { NoteContext, Speller } from './speller.js';
+import { noteIdOf, type NoteContext, type Speller } from './speller.js';
 
 /** Parameters of the following speller (all have defaults; the setup file may change them). */
 export interface FollowParameters {
@@ -431,7 +431,7 @@ export class FollowSpeller implements Speller {
         this.resolvedT[from] = n.time;
       });
     return notes.map((n, i) => {
-      this.held.set(noteId(n), mod(n.key, 12));
+      this.held.set(noteIdOf(n), mod(n.key, 12));
       const f = this.withinReach(fifths[i]!);
       if (!this.frozen) {
         this.localWeight += 1;
@@ -548,7 +548,7 @@ export class FollowSpeller implements Speller {
   }
 
   noteOff(note: NoteContext): void {
-    this.held.delete(noteId(note));
+    this.held.delete(noteIdOf(note));
   }
 
   currentWindow(): KeyboardWindow {
@@ -571,6 +571,3 @@ function alternative(f: number, centre: number): number {
   return f <= centre ? f + 12 : f - 12;
 }
 
-function noteId(n: NoteContext): number {
-  return n.source * 2048 + n.channel * 128 + n.key;
-}

@@ -1,3 +1,4 @@
+import { noteId, type NoteId } from '../midi/note-id.js';
 import { DEFAULT_WINDOW, spellKey, type KeyboardWindow, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import { keyWindow, type DeclaredKey } from './keys.js';
 
@@ -10,6 +11,11 @@ export interface NoteContext {
   /** Input channel 0…15 and input source (device) number. */
   readonly channel: number;
   readonly source: number;
+}
+
+/** The physical key a note came from, as the engine names it. */
+export function noteIdOf(note: NoteContext): NoteId {
+  return noteId(note.source, note.channel, note.key);
 }
 
 /**

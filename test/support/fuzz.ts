@@ -5,7 +5,7 @@ import { renderEvents } from '../../src/render/render-midi.js';
 import type { MidiFileContent } from '../../src/render/smf.js';
 import type { RouterEvent } from '../../src/router/router.js';
 import { createEngine, createRouter, type EngineOptionsInput } from '../../src/router/setup.js';
-import { sourceOf } from '../../src/router/note-id.js';
+import { sourceOf } from '../../src/midi/note-id.js';
 import { createStrategy } from '../../src/spelling/strategy.js';
 import { parseReference } from '../../src/tuning/index.js';
 import { InvariantChecker, type InvariantCounts } from './invariants.js';
