@@ -158,6 +158,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     octaveForm: octaveForm === undefined ? undefined : octaveForm === '1' ? 1 : 2,
     speller,
     sampleLayout: sampleSet?.layout,
+    sampleKeys: sampleSet && new Set(sampleSet.manifest.files.map((f) => (f.channel - 1) * 128 + f.key)),
     controls: new ControlMap(setup?.bindings ?? [], speller),
     gather: cli.gather ?? json?.spelling?.gatherMs,
   };

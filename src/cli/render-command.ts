@@ -17,7 +17,7 @@ import { matchSummary, scoreSpellerOf } from '../score/score-status.js';
 
 export function summaryText(summary: RenderSummary, header: string): string {
   const rows: Array<[string, string]> = [
-    ['notes', `${summary.notesIn} in, ${summary.notesOut} out${summary.notesDropped ? `, ${summary.notesDropped} dropped (outside the synth's keys)` : ''}`],
+    ['notes', `${summary.notesIn} in, ${summary.notesOut} out${summary.notesDropped ? `, ${summary.notesDropped} dropped (${summary.dropped})` : ''}`],
     ['channels used', formatChannels(summary.channelsUsed) || 'none'],
     [OUTPUT_MODES[summary.mode].retuneLabel, String(summary.retunes)],
     ['steals', String(summary.steals)],

@@ -76,7 +76,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
     io.stdout.write(renderTable(columns, rows, style.bold) + '\n\n');
     const { tally } = engine;
     const extra = [
-      tally.notesDropped ? `${tally.notesDropped} dropped (their tuned key lies outside 0–127)` : '',
+      tally.notesDropped ? `${tally.notesDropped} dropped (${tally.dropSummary()})` : '',
       tally.substitutions ? `${tally.substitutions} played as the nearest spelling the sample set has` : '',
       tally.outOfRange ? `${tally.outOfRange} beyond what the output can tune` : '',
       tally.compromises ? `${tally.compromises} placed at a compromise pitch` : '',

@@ -13,6 +13,8 @@ export interface RenderSummary {
   readonly notesIn: number;
   readonly notesOut: number;
   readonly notesDropped: number;
+  /** Why, in words (commonest first). */
+  readonly dropped: string;
   /** Notes sounded as another spelling than the one decided (a sample set lacking it). */
   readonly substitutions: number;
   readonly mode: OutputMode;
@@ -93,6 +95,7 @@ export function renderEvents(
       notesIn: tally.notesIn,
       notesOut: tally.notesOut,
       notesDropped: tally.notesDropped,
+      dropped: tally.dropSummary(),
       substitutions: tally.substitutions,
       mode: options.mode,
       channelsUsed: tally.channelsUsed(),

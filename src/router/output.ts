@@ -81,6 +81,8 @@ export interface OutputRequest {
   readonly octaveForm: 1 | 2;
   /** For `samples`: each spelling's channel in the set (line-of-fifths position → 0…15). */
   readonly sampleLayout: ReadonlyMap<number, number> | undefined;
+  /** For `samples`: the (channel · 128 + key) pairs that have a sample; undefined: every key. */
+  readonly sampleKeys?: ReadonlySet<number> | undefined;
   /** The spellings in use at start (12-class outputs tune their table from it). */
   readonly window: KeyboardWindow;
 }

@@ -15,8 +15,14 @@ export class SamplesOutput implements OutputStrategy {
   readonly zoneChannels: readonly number[];
   readonly allChannels: readonly number[];
 
-  /** `layout`: line-of-fifths position of each spelling → its channel (0…15). */
-  constructor(private readonly layout: ReadonlyMap<number, number>) {
+  /**
+   * `layout`: line-of-fifths position of each spelling → its channel (0…15); `keys`: the
+   * (channel · 128 + key) pairs that have a sample (a set covers the instrument's compass only).
+   */
+  constructor(
+    private readonly layout: ReadonlyMap<number, number>,
+    private readonly keys?: ReadonlySet<number>,
+  ) {
     this.zoneChannels = [...new Set(layout.values())].sort((a, b) => a - b);
     this.allChannels = this.zoneChannels;
   }
@@ -34,9 +40,15 @@ export class SamplesOutput implements OutputStrategy {
     return best === undefined ? pitch : onKey(pitchClass(best), keyOf(pitch));
   }
 
-  place(note: TunedNote): Placement | undefined {
+  place(note: TunedNote, _time: number, context: OutputContext): Placement | undefined {
     const channel = this.layout.get(note.pitch.fifths);
-    return channel === undefined ? undefined : { channel, key: keyOf(note.pitch) };
+    const key = keyOf(note.pitch);
+    if (channel === undefined) return undefined;
+    if (this.keys && !this.keys.has(channel * 128 + key)) {
+      context.refuse(`the sample set has no sample for key ${key} (outside the compass it was built for)`);
+      return undefined;
+    }
+    return { channel, key };
   }
 
   voiceEnded(): void {}
@@ -58,6 +70,6 @@ export const samplesMode: OutputModeEntry = {
   retuneLabel: 'tuning messages',
   create(request) {
     if (!request.sampleLayout) throw new UserError('--mode samples needs a sample set: give --sample-set DIR (made by "diesis samples")', 2);
-    return new SamplesOutput(request.sampleLayout);
+    return new SamplesOutput(request.sampleLayout, request.sampleKeys);
   },
 };

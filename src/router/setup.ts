@@ -55,6 +55,7 @@ export function resolveEngineOptions(input: EngineOptionsInput): EngineOptions {
     mtsProgram: input.mtsProgram ?? 0,
     octaveForm: input.octaveForm ?? 2,
     sampleLayout: input.sampleLayout,
+    sampleKeys: input.sampleKeys,
     speller: input.speller ?? fixedSpeller(window),
     window: input.speller ? input.speller.currentWindow() : window,
     // A controlled speller always has a control map, so pages and programmes can act as pedals do.

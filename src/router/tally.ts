@@ -17,6 +17,8 @@ export class Tally {
   /** Adaptive tunings: notes placed at a compromise pitch. */
   compromises = 0;
   private readonly channels = new Set<number>();
+  /** Why notes were dropped, and how often each reason. */
+  readonly dropReasons = new Map<string, number>();
 
   /** Takes one event; pass it as (or inside) the engine's observer. */
   readonly observe = (e: RouterEvent): void => {
@@ -31,6 +33,7 @@ export class Tally {
       case 'note-dropped':
         this.notesIn++;
         this.notesDropped++;
+        this.dropReasons.set(e.reason, (this.dropReasons.get(e.reason) ?? 0) + 1);
         return;
       case 'out-of-range':
         this.outOfRange++;
@@ -52,6 +55,11 @@ export class Tally {
         return;
     }
   };
+
+  /** The reasons notes were dropped, in words, commonest first. */
+  dropSummary(): string {
+    return [...this.dropReasons].sort((a, b) => b[1] - a[1]).map(([reason, n]) => `${n}: ${reason}`).join('; ');
+  }
 
   /** Output channels that have carried notes, 0…15, ascending. */
   channelsUsed(): number[] {

@@ -5,7 +5,7 @@ import { buildSampleSet, fileStem, keyFromName, loadSampleSet, playSampleSet, re
 import { writeWav } from '../../src/audio/wav.js';
 import { formatSpelledPitch, keyOf, parseFifthsRange, parseSpelledPitch, parseWindow, spellKey } from '../../src/pitch/index.js';
 import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
-import { createRouter } from '../../src/router/setup.js';
+import { createEngine, createRouter } from '../../src/router/setup.js';
 import { fixedSpeller } from '../../src/spelling/speller.js';
 import { A440, frequency, parseReference } from '../../src/tuning/index.js';
 import { measureFrequency } from '../support/signal.js';
@@ -59,6 +59,23 @@ describe('retuned sample sets', () => {
     }
     const sfz = readFileSync(join(out, 'diesis.sfz'), 'utf8');
     expect(sfz).toMatch(/<group> lochan=12 hichan=12[^\n]*\n<region> sample=Gs3\.wav lokey=56 hikey=56 pitch_keycenter=56 loop_mode=loop_continuous/u);
+  });
+
+  it('drops a note outside the compass the set was built for, and says why, instead of sending it to silence', () => {
+    const set = loadSampleSet(out); // built for keys 48–72
+    const { router, tally } = createEngine({
+      tuning: meantone,
+      reference: A440,
+      mode: 'samples',
+      sampleLayout: set.layout,
+      sampleKeys: new Set(set.manifest.files.map((f) => (f.channel - 1) * 128 + f.key)),
+      speller: fixedSpeller(),
+    });
+    router.start(0);
+    expect(router.process(0, [0x90, 36, 100]).map((m) => m.data)).toEqual([]); // C2: below the set’s compass
+    expect(router.process(1, [0x90, 60, 100]).some((m) => (m.data[0]! & 0xf0) === 0x90)).toBe(true);
+    expect(tally.notesDropped).toBe(1);
+    expect(tally.dropSummary()).toMatch(/1: the sample set has no sample for key 36/u);
   });
 
   it('sounds every note at its spelling’s frequency within 0.1 cent, through the samples mode of the engine', () => {
