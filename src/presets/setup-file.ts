@@ -1,5 +1,5 @@
 import { dirname, isAbsolute, resolve } from 'node:path';
-import { parsePitchClass, parseWindow, type KeyboardWindow } from '../pitch/index.js';
+import { chromaOf, DEFAULT_WINDOW, formatPitchClass, parsePitchClass, parseWindow, spellChroma, type KeyboardWindow } from '../pitch/index.js';
 import { OUTPUT_MODES, type OutputMode } from '../router/output-modes.js';
 import type { ModeSetting } from '../router/output.js';
 import { actionEntry, type Action, type ActionName, type Binding, type Trigger } from '../spelling/control-map.js';
@@ -139,7 +139,8 @@ function bindingConflicts(bindings: readonly PlacedBinding[], problems: Problem[
       problems.push({ path: b.path, message: `${describeTrigger(b.binding.trigger)} is already bound at ${earlier.path.replace(/^\$\./u, '')} (one pedal or key, two actions)` });
     }
     const t = b.binding.trigger;
-    if (t.kind === 'note' && t.key >= PLAYING_RANGE.lowest && t.key <= PLAYING_RANGE.highest) {
+    // With a channel of its own (a second keyboard, a pedal board) a key switch is no player's key.
+    if (t.kind === 'note' && t.channel === undefined && t.key >= PLAYING_RANGE.lowest && t.key <= PLAYING_RANGE.highest) {
       problems.push({ path: b.path, warning: true, message: `key ${t.key} is inside the keyboard's playing range (${PLAYING_RANGE.lowest}–${PLAYING_RANGE.highest}): played there, it will never sound` });
     }
   });
@@ -152,6 +153,9 @@ function splitsOf(json: SetupJson, problems: Problem[]): SplitKey[] {
     if (!s) return;
     const path = `$.splitKeys[${i}]`;
     const spelling = s.window !== undefined ? collecting(problems, `${path}.window`, () => parseWindow(s.window!, 'window')) : collecting(problems, `${path}.spelling`, () => parsePitchClass(s.spelling!, 'spelling'));
+    if (spelling && !('kind' in spelling) && s.key !== undefined && chromaOf(spelling) !== s.key % 12) {
+      problems.push({ path: `${path}.spelling`, message: `${s.spelling} is not a spelling of key ${s.key}, which is ${formatPitchClass(spellChroma(DEFAULT_WINDOW, s.key % 12))} or another name for it` });
+    }
     const id = `${s.channel ?? '*'} ${s.source ?? '*'} ${s.key ?? '*'}`;
     const first = seen.get(id);
     if (first !== undefined) problems.push({ path, message: `the same ${s.key === undefined ? 'channel' : `key ${s.key}`} as splitKeys[${first}]: two rules for one key` });
@@ -233,6 +237,14 @@ function semanticChecks(json: SetupJson, file: string, problems: Problem[]): Omi
   bindingConflicts(placed, problems);
   const splits = splitsOf(json, problems);
   const score = json.score === undefined ? undefined : collecting(problems, '$.score', () => readScoreFile(setupPath(file, json.score!)));
+  for (const { binding, path } of placed) {
+    const { name, bar } = binding.action;
+    if (!name.startsWith('score-')) continue;
+    if (json.score === undefined) problems.push({ path, warning: true, message: `"${name}" acts on a score, and this setup names none (one given with --score will do)` });
+    else if (score && bar !== undefined && !score.measures.some((m) => m.number === bar)) {
+      problems.push({ path: `${path}.bar`, message: `the score has no bar ${bar} (its bars run ${score.measures[0]?.number ?? '?'}…${score.measures[score.measures.length - 1]?.number ?? '?'})` });
+    }
+  }
   return { tuning, reference, channels, window, key, bindings: placed.map((p) => p.binding), splits, score };
 }
 
@@ -245,12 +257,24 @@ function salvage(value: unknown): SetupJson | undefined {
     return r.success ? r.data : undefined;
   };
   const shape = setupSchema.shape;
+  /** A block whose every field is kept if it is valid on its own. */
+  const fields = <T>(block: { unwrap(): { shape: Record<string, { safeParse(v: unknown): { success: boolean; data?: unknown } }> } }, v: unknown): T | undefined => {
+    if (typeof v !== 'object' || v === null) return undefined;
+    const inner = block.unwrap().shape;
+    const kept: Record<string, unknown> = {};
+    for (const [k, x] of Object.entries(v)) {
+      const field = inner[k];
+      const r = field?.safeParse(x);
+      if (r?.success) kept[k] = r.data;
+    }
+    return kept as T;
+  };
   return {
     tuning: part(shape.tuning, raw.tuning),
     reference: part(shape.reference, raw.reference),
     score: part(shape.score, raw.score),
-    output: part(shape.output, raw.output),
-    spelling: part(shape.spelling, raw.spelling),
+    output: part(shape.output, raw.output) ?? fields(shape.output, raw.output),
+    spelling: part(shape.spelling, raw.spelling) ?? fields(shape.spelling, raw.spelling),
     // Invalid entries stay as holes, so the valid ones keep their index (and their line).
     controls: Array.isArray(raw.controls) ? (raw.controls.map((c) => part(controlSchema, c)) as ControlJson[]) : undefined,
     splitKeys: Array.isArray(raw.splitKeys) ? (raw.splitKeys.map((s) => part(splitKeySchema, s)) as SplitKeyJson[]) : undefined,

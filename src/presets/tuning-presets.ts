@@ -136,6 +136,13 @@ export function checkTuningPreset(text: string, file: string, id = basename(file
 }
 
 function checkTuningJson(value: unknown, id: string, file: string): Omit<PresetCheck, 'source'> {
+  if (typeof value === 'object' && value !== null && !('kind' in value)) {
+    const setupLike = ['output', 'spelling', 'controls', 'keyboard', 'splitKeys', 'tuning'].some((k) => k in value);
+    const message = setupLike
+      ? 'this is a setup, not a tuning (a tuning has a "kind"): give it with --setup'
+      : 'is missing: a tuning file says its "kind" ("regular", "just", "circulating" or "just-adaptive")';
+    return { preset: undefined, problems: [{ path: '$.kind', message }] };
+  }
   const parsed = tuningPresetSchema.safeParse(value, { reportInput: true });
   if (!parsed.success) return { preset: undefined, problems: zodProblems(parsed.error) };
   const json = parsed.data;

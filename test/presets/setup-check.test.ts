@@ -46,7 +46,7 @@ describe('check sees what play would refuse, all of it at once, with lines', () 
   });
 
   it('a key switch on a key the player plays is a warning; a setup with only warnings loads', () => {
-    const check = checkSetup(JSON.stringify({ controls: [{ note: 60, channel: 16, action: 'flip', latch: true }, { note: 12, action: 'panic' }] }), 's.json');
+    const check = checkSetup(JSON.stringify({ controls: [{ note: 60, action: 'flip', latch: true }, { note: 12, action: 'panic' }] }), 's.json');
     expect(check.setup).toBeDefined();
     expect(check.problems.map((p) => formatProblem('s.json', p, check.source))).toEqual([
       "s.json:1: warning: controls[0]: key 60 is inside the keyboard's playing range (21–108): played there, it will never sound",
@@ -112,5 +112,38 @@ describe('the README’s setup example', () => {
     const check = checkSetup(example!, join(dir, 'setup.json'));
     expect(check.problems.map((p) => formatProblem('README', p, check.source))).toEqual([]);
     expect(check.setup?.bindings.length).toBeGreaterThan(5);
+  });
+});
+
+describe('what a player found trying it', () => {
+  it('a split-key spelling must be a spelling of its key', () => {
+    expect(lines(JSON.stringify({ splitKeys: [{ channel: 1, key: 70, spelling: 'B' }] }))).toEqual([
+      'stage.json:1: splitKeys[0].spelling: B is not a spelling of key 70, which is Bb or another name for it',
+    ]);
+  });
+
+  it('a mistake in one field does not hide the others of its block', () => {
+    const found = lines(JSON.stringify({ spelling: { strategy: 'folow', key: 'H minor' }, output: { channels: '0-17', bendRange: 200 } }));
+    expect(found.some((l) => l.includes('spelling.strategy'))).toBe(true);
+    expect(found.some((l) => l.includes('spelling.key') && l.includes('H minor'))).toBe(true);
+    expect(found.some((l) => l.includes('output.bendRange'))).toBe(true);
+    expect(found.some((l) => l.includes('output.channels') && l.includes('0 is not a MIDI channel'))).toBe(true);
+  });
+
+  it('a key switch on a channel of its own is no player’s key: no warning', () => {
+    expect(lines(JSON.stringify({ controls: [{ note: 60, channel: 16, action: 'flip' }] }))).toEqual([]);
+  });
+
+  it('score controls: a bar the score lacks is a problem; without a score, a warning', () => {
+    const score = join(import.meta.dirname, '..', '..', 'corpus', 'mozart-scores', 'sonata01-2.mxl'); // CC BY-NC-SA 4.0, see its LICENSE.md
+    expect(lines(JSON.stringify({ score, controls: [{ program: 3, action: 'score-bar', bar: 999 }] }))[0]).toMatch(/controls\[0\]\.bar: the score has no bar 999 \(its bars run /u);
+    expect(lines(JSON.stringify({ controls: [{ program: 3, action: 'score-restart' }] }))[0]).toMatch(/warning: controls\[0\]: "score-restart" acts on a score, and this setup names none/u);
+  });
+
+  it('a setup given where a tuning goes says so', async () => {
+    const { checkTuningPreset } = await import('../../src/presets/tuning-presets.js');
+    expect(checkTuningPreset(JSON.stringify({ tuning: 'meantone-1-4', output: { mode: 'bend' } }), 'setup.json').problems.map((p) => p.message)).toEqual([
+      'this is a setup, not a tuning (a tuning has a "kind"): give it with --setup',
+    ]);
   });
 });
