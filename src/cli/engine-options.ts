@@ -160,6 +160,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     sampleLayout: sampleSet?.layout,
     controls: new ControlMap(setup?.bindings ?? [], speller),
     gather: cli.gather ?? json?.spelling?.gatherMs,
+    tuningAbout: { id: preset.id, name: preset.name },
   };
   if (sampleSet) checkSetPlays(sampleSet, { tuning: preset.tuning, tuningName: preset.name, reference: options.reference, mode: cli.mode ?? json?.output?.mode });
   const spellingLabel =

@@ -1,5 +1,6 @@
 import { createWriteStream, type WriteStream } from 'node:fs';
 import { formatSpelledPitch } from '../pitch/index.js';
+import { formatReference } from '../tuning/index.js';
 import type { RouterEvent } from '../router/router.js';
 import { createEngine, type EngineOptionsInput } from '../router/setup.js';
 import { channelOf, keyOfNote, sourceOf } from '../router/note-id.js';
@@ -48,6 +49,7 @@ export interface Session {
 
 /** One JSON line per event: spellings as names, a note's identity as source, channel (1–16) and key. */
 export function logLine(e: RouterEvent): string {
+  if (e.type === 'tuning') return JSON.stringify({ type: e.type, time: e.time, tuning: e.tuningId, name: e.name, reference: formatReference(e.reference) }) + '\n';
   const fields: Record<string, unknown> = { ...e };
   if ('id' in e) {
     delete fields.id;

@@ -9,7 +9,15 @@ const midiValue = z.number().int().min(0).max(127);
 
 const action = z.enum(ACTION_NAMES);
 
-const zone = z.strictObject({ from: midiValue, to: midiValue, action, key: z.string().optional(), latch: z.boolean().optional() });
+const zone = z.strictObject({
+  from: midiValue,
+  to: midiValue,
+  action,
+  key: z.string().optional(),
+  tuning: z.string().optional(),
+  reference: z.string().optional(),
+  latch: z.boolean().optional(),
+});
 
 /** One control: what triggers it (cc, zones, note or program) and what it does. */
 export const controlSchema = z
@@ -23,6 +31,9 @@ export const controlSchema = z
     source: z.number().int().min(0).optional(),
     action: action.optional(),
     key: z.string().optional(),
+    /** For set-tuning: the tuning (a built-in id or a file beside the setup) and, optionally, its reference. */
+    tuning: z.string().optional(),
+    reference: z.string().optional(),
     latch: z.boolean().optional(),
   })
   .refine((c) => [c.cc, c.note, c.program].filter((x) => x !== undefined).length === 1, { error: 'give exactly one of "cc", "note" or "program"' })

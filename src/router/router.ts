@@ -4,8 +4,9 @@ import { MidiStreamParser } from '../midi/parser.js';
 import { BEND_CENTRE } from '../midi/pitch-bend.js';
 import { keyOf, spellKey, type SpelledPitch } from '../pitch/index.js';
 import type { ControlMap, EngineActions, Firing } from '../spelling/control-map.js';
+import { ControlledSpeller } from '../spelling/controlled.js';
 import type { NoteContext, Speller } from '../spelling/speller.js';
-import type { AdaptedTunedNote, AdaptivePitches } from './adaptive-pitches.js';
+import type { AdaptedTunedNote } from './adaptive-pitches.js';
 import { ChordGatherer, type GatherSetting } from './chord-gatherer.js';
 import type { RouterEvent } from './events.js';
 import { isParameterController, KeyboardState } from './keyboard-state.js';
@@ -13,7 +14,8 @@ import { channelOf, keyOfNote, noteId, sourceOf, type NoteId } from './note-id.j
 import type { OutputContext, OutputStrategy } from './output.js';
 import type { PitchTable } from './pitch-table.js';
 import { planRespelling } from './respell.js';
-import { TableChoice } from './table-choice.js';
+import type { PieceChange, PieceSource } from './pieces.js';
+import { TuningInForce, type TuningChange } from './tuning-in-force.js';
 import { VoiceBook } from './voice-book.js';
 
 export type { RouterEvent } from './events.js';
@@ -30,8 +32,10 @@ export interface RouterSetup {
   /** The player's pedals, key switches and program changes bound to actions. */
   readonly controls?: ControlMap | undefined;
   readonly gather?: GatherSetting | undefined;
-  /** For adaptive tunings: pitches that follow the harmony instead of the table. */
-  readonly adaptive?: AdaptivePitches | undefined;
+  /** The tuning's id and name, for the events a tuning change sends. */
+  readonly tuningAbout?: { readonly id: string; readonly name: string } | undefined;
+  /** A concert programme: where next-piece and previous-piece lead. */
+  readonly pieces?: PieceSource | undefined;
   /** Hears every decision; displays, logs, reports and counters are folds over these events. */
   readonly observer?: ((event: RouterEvent) => void) | undefined;
 }
@@ -56,7 +60,8 @@ export class Router {
   private readonly context: OutputContext;
   private readonly actions: EngineActions;
   private readonly everyChannel: readonly number[];
-  private readonly tables: TableChoice;
+  /** The tuning and reference new notes take (a set-tuning control or a new piece changes them). */
+  private readonly tuning: TuningInForce;
   private readonly observe: ((event: RouterEvent) => void) | undefined;
   private out: TimedMessage[] = [];
   private now = 0;
@@ -70,14 +75,14 @@ export class Router {
     const observe = (this.observe = setup.observer);
     const output = setup.output;
     this.keyboard = new KeyboardState(setup.wheelRange);
-    this.tables = new TableChoice(setup.table);
+    const tuning = (this.tuning = new TuningInForce(setup.table, setup.tuningAbout));
     this.gatherer = new ChordGatherer(setup.gather ?? 0);
     this.everyChannel = [...new Set([...output.allChannels, ...output.zoneChannels])];
     const book = (this.book = new VoiceBook({
       noteOff: (voice, velocity) => this.emit(noteOff(voice.placement.channel, voice.placement.key, velocity)),
       ended: (voice, cause) => {
         if (cause !== 'stolen' && cause !== 'panic') output.voiceEnded(voice.placement, this.now);
-        setup.adaptive?.ended(this.now, voice.id);
+        tuning.adaptive?.ended(this.now, voice.id);
         observe?.({ type: 'voice-ended', time: this.now, id: voice.id, placement: voice.placement, cause });
       },
     }));
@@ -101,7 +106,40 @@ export class Router {
         observe?.({ type: 'pass', time: this.now, on: this.passThrough });
       },
       panic: () => this.doPanic('panic control'),
+      setTuning: (change) => this.changeTuning(change),
+      stepPiece: (step) => {
+        const change = this.setup.pieces?.step(step);
+        if (change) this.changePiece(change);
+      },
     };
+  }
+
+  /** The tuning new notes take now, its reference, and its id and name. */
+  get tuningInForce(): Pick<TuningInForce, 'tuning' | 'reference' | 'id' | 'name'> {
+    return this.tuning;
+  }
+
+  /** Moves to a piece of the programme (the first piece, a resumed concert); false if there is none there. */
+  goToPiece(time: number, index: number): { messages: TimedMessage[]; moved: boolean } {
+    this.begin(time);
+    this.flushChord();
+    const change = this.setup.pieces?.at(index);
+    if (change) this.changePiece(change);
+    return { messages: this.done(), moved: change !== undefined };
+  }
+
+  /** New notes take `change`; notes sounding finish in the tuning they began in. */
+  private changeTuning(change: TuningChange): void {
+    this.tuning.change(change);
+    this.observe?.({ type: 'tuning', time: this.now, tuningId: change.id, name: change.name, tuning: this.tuning.tuning, reference: this.tuning.reference });
+  }
+
+  /** A new piece: its tuning, its spelling (a fresh strategy, its score from the beginning) and its key. */
+  private changePiece(change: PieceChange): void {
+    const speller = this.setup.speller;
+    if (speller instanceof ControlledSpeller) speller.replaceBase(change.spelling.base, change.spelling.key);
+    this.changeTuning(change.tuning);
+    this.observe?.({ type: 'piece', time: this.now, index: change.index, count: change.count, title: change.title });
   }
 
   /** True while new notes sound in 12-ET at the reference (the pass control, for comparison). */
@@ -300,7 +338,7 @@ export class Router {
       const pitch = spelled[i];
       return pitch === undefined || keyOf(pitch) !== keyOfNote(n.id) ? spellKey(speller.currentWindow(), keyOfNote(n.id)) : pitch; // never trust a speller blindly
     });
-    const adaptive = this.setup.adaptive;
+    const adaptive = this.tuning.adaptive;
     if (adaptive && !this.passThrough) {
       adaptive.setTonic(speller.declaredTonic?.());
       const tuned = adaptive.tuneChord(this.now, notes.map((n, i) => ({ id: n.id, pitch: pitches[i]! })));
@@ -314,7 +352,7 @@ export class Router {
   private sound(id: NoteId, wanted: SpelledPitch, velocity: number, adapted?: AdaptedTunedNote): void {
     const output = this.setup.output;
     const pitch = output.available ? output.available(wanted) : wanted;
-    const tuned = adapted ?? this.tables.now(this.passThrough, () => this.setup.speller.currentTonic()).tune(pitch);
+    const tuned = adapted ?? this.tuning.tables.now(this.passThrough, () => this.setup.speller.currentTonic()).tune(pitch);
     this.refusal = undefined;
     const placement = output.place(tuned, this.now, this.context);
     if (!placement) {
@@ -344,7 +382,7 @@ export class Router {
   private respell(): void {
     const output = this.setup.output;
     const plan = planRespelling(this.book.voices(), (v) => this.setup.speller.peek(this.contextOf(v.id, v.velocity)), output.inPlace);
-    const table = this.tables.now(this.passThrough, () => this.setup.speller.currentTonic());
+    const table = this.tuning.tables.now(this.passThrough, () => this.setup.speller.currentTonic());
     const restrike = [...plan.restrike];
     for (const unit of plan.retune) {
       const first = unit[0]!;
@@ -433,7 +471,7 @@ export class Router {
       this.emit(controlChange(c, CC.allNotesOff, 0));
     }
     this.setup.output.panic(this.context, this.now);
-    this.setup.adaptive?.reset();
+    this.tuning.adaptive?.reset();
     this.observe?.({ type: 'panic', time: this.now, reason });
   }
 }

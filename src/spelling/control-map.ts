@@ -1,4 +1,5 @@
 import type { MidiMessage } from '../midi/message.js';
+import type { TuningChange } from '../router/tuning-in-force.js';
 import type { ControlledSpeller } from './controlled.js';
 import type { DeclaredKey } from './keys.js';
 
@@ -9,6 +10,10 @@ export interface EngineActions {
   /** New notes in 12-ET at the reference, or back. */
   togglePass(): void;
   panic(): void;
+  /** New notes in another tuning (and reference); notes sounding finish in theirs. */
+  setTuning(change: TuningChange): void;
+  /** The next (1) or previous (−1) piece of a concert programme; nothing without one or at its ends. */
+  stepPiece(step: 1 | -1): void;
 }
 
 /** What an action acts on. */
@@ -24,8 +29,10 @@ export interface ActionEntry {
   readonly kind: 'hold' | 'press';
   /** Needs a key (`set-key`). */
   readonly needsKey?: boolean;
+  /** Needs a tuning (`set-tuning`). */
+  readonly needsTuning?: boolean;
   /** `on`: for a hold action whether it is on now; a press action runs only on presses. */
-  run(target: ActionTarget, on: boolean, key: DeclaredKey | undefined): void;
+  run(target: ActionTarget, on: boolean, action: Action): void;
 }
 
 /**
@@ -39,7 +46,10 @@ export const ACTIONS = {
   'force-sharps': { summary: 'every black key a sharp while held', kind: 'hold', run: (t, on) => forceTo(t.speller, 'sharps', on) },
   'force-flats': { summary: 'every black key a flat while held', kind: 'hold', run: (t, on) => forceTo(t.speller, 'flats', on) },
   freeze: { summary: 'hold the spelling context still while held', kind: 'hold', run: (t, on) => t.speller.setFrozen(on) },
-  'set-key': { summary: 'jump to a declared key', kind: 'press', needsKey: true, run: (t, _on, key) => key && t.speller.setKey(key) },
+  'set-key': { summary: 'jump to a declared key', kind: 'press', needsKey: true, run: (t, _on, a) => a.key && t.speller.setKey(a.key) },
+  'set-tuning': { summary: 'new notes take another tuning (and reference); notes sounding finish in theirs', kind: 'press', needsTuning: true, run: (t, _on, a) => a.tuning && t.engine.setTuning(a.tuning) },
+  'next-piece': { summary: "the concert programme's next piece", kind: 'press', run: (t) => t.engine.stepPiece(1) },
+  'previous-piece': { summary: "the concert programme's previous piece", kind: 'press', run: (t) => t.engine.stepPiece(-1) },
   respell: { summary: 'respell the notes sounding now', kind: 'press', run: (t) => t.engine.respell() },
   pass: { summary: "toggle the synth's own 12-ET for comparison", kind: 'press', run: (t) => t.engine.togglePass() },
   panic: { summary: 'all notes off, pedals up, bends centred', kind: 'press', run: (t) => t.engine.panic() },
@@ -57,10 +67,11 @@ function forceTo(speller: ControlledSpeller, to: 'sharps' | 'flats', on: boolean
   speller.setForce(on ? to : now === to ? undefined : now);
 }
 
-/** An action as bound: its name and, for `set-key`, the key. */
+/** An action as bound: its name and, for `set-key`, the key; for `set-tuning`, the tuning. */
 export interface Action {
   readonly name: ActionName;
   readonly key?: DeclaredKey | undefined;
+  readonly tuning?: TuningChange | undefined;
 }
 
 /** What fires a control: a switch pedal, a zone of an expression pedal, a key switch, a program change. */
@@ -149,5 +160,5 @@ export class ControlMap {
 
 /** Runs one firing (a page button or a programme step fires the same way). */
 export function fire(firing: Firing, target: ActionTarget): void {
-  actionEntry(firing.action.name).run(target, firing.on, firing.action.key);
+  actionEntry(firing.action.name).run(target, firing.on, firing.action);
 }
