@@ -1,4 +1,5 @@
 import { formatRange, formatSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
+import { formatReference } from '../tuning/index.js';
 import type { RouterEvent } from '../router/events.js';
 import type { NoteId } from '../router/note-id.js';
 import { channelOf, keyOfNote, sourceOf } from '../router/note-id.js';
@@ -46,6 +47,9 @@ export class LiveView {
   private sustain = false;
   private sostenuto = false;
   private passing = false;
+  /** The piece of a concert programme and the tuning in force, once either has changed. */
+  private pieceNow: string | undefined;
+  private tuningNow: string | undefined;
 
   constructor(
     private readonly sources: ViewSources,
@@ -78,6 +82,12 @@ export class LiveView {
       case 'pass':
         this.passing = e.on;
         break;
+      case 'piece':
+        this.pieceNow = this.pieceWords(e);
+        break;
+      case 'tuning':
+        this.tuningNow = this.tuningWords(e);
+        break;
       case 'panic':
         this.sounding.clear();
         this.sustain = false;
@@ -96,8 +106,18 @@ export class LiveView {
       const m = matchOf(this.sources.speller, sourceOf(e.id), channelOf(e.id), keyOfNote(e.id));
       return `${this.note(e.pitch).padEnd(5)} key ${String(keyOfNote(e.id)).padStart(3)}  ${signed(e.cents, 2, this.names.accidentals === 'ascii').padStart(8)} c  ${e.hz.toFixed(2).padStart(8)} Hz  → ch ${e.placement.channel + 1} key ${e.placement.key}${instead}${m ? `  bar ${m.bar ?? '-'} ${m.match}` : ''}`;
     }
+    if (e.type === 'piece') return this.style.bold(`== ${this.pieceWords(e)}`);
+    if (e.type === 'tuning') return this.style.bold(`== ${this.tuningWords(e)}`);
     const warning = this.warningOf(e);
     return warning && this.style.yellow(`! ${warning}`);
+  }
+
+  private pieceWords(e: Extract<RouterEvent, { type: 'piece' }>): string {
+    return `piece ${e.index + 1} of ${e.count}: ${e.title}`;
+  }
+
+  private tuningWords(e: Extract<RouterEvent, { type: 'tuning' }>): string {
+    return `new notes in ${e.name} (${e.tuningId}), ${formatReference(e.reference, this.names)}; notes sounding finish in theirs`;
   }
 
   private warningOf(e: RouterEvent): string | undefined {
@@ -136,6 +156,8 @@ export class LiveView {
     const ports = this.sources.ports();
     const lines: string[] = [];
     lines.push(s.bold(title));
+    if (this.pieceNow) lines.push(s.bold(s.green(this.pieceNow)));
+    if (this.tuningNow) lines.push(this.tuningNow);
     const window = formatRange(speller.currentWindow(), this.names);
     lines.push(`spelling ${s.bold(strategy)}  window ${s.bold(window)}${o.shift ? `  shift ${o.shift > 0 ? '+' : ''}${o.shift}` : ''}${this.passing ? s.yellow('  12-ET PASS') : ''}`);
     const following = scoreStatus(speller);

@@ -254,7 +254,8 @@ export function checkSetup(text: string, file: string): SetupCheck {
   return { setup: { file, json, ...values }, problems, source };
 }
 
-function semanticChecks(json: SetupJson, file: string, problems: Problem[]): Omit<SetupFile, 'file' | 'json'> {
+/** Checks and loads every value of a (schema-valid) setup, paths as in a setup file; `file` is where relative paths start. */
+export function semanticChecks(json: SetupJson, file: string, problems: Problem[]): Omit<SetupFile, 'file' | 'json'> {
   const tuning = json.tuning === undefined ? undefined : collecting(problems, '$.tuning', () => setupTuning(file, json.tuning!));
   const reference = json.reference === undefined ? undefined : collecting(problems, '$.reference', () => parseReference(json.reference!, 'reference'));
   const channels = outputProblems(json, problems);

@@ -12,6 +12,8 @@ export interface TuningChange {
   readonly tuning: Tuning;
   /** The new reference pitch; undefined keeps the one in force. */
   readonly reference?: Reference | undefined;
+  /** The synth's own A4 from now on (a synth retuned between pieces); undefined keeps it. */
+  readonly synthA4?: number | undefined;
 }
 
 /**
@@ -71,7 +73,7 @@ export class TuningInForce {
   /** New notes from now on take `change`; the reference stays when the change gives none. */
   change(change: TuningChange): void {
     const base = this.current.base;
-    const table = new PitchTable(change.tuning, change.reference ?? base.reference, base.synthA4);
+    const table = new PitchTable(change.tuning, change.reference ?? base.reference, change.synthA4 ?? base.synthA4);
     this.current = new TableChoice(table);
     this.tuner = TuningInForce.tunerOf(table);
     this.named = { id: change.id, name: change.name };
