@@ -10,6 +10,12 @@ import type { CommandIo } from '../util/io.js';
 import { renderTable } from '../text/table.js';
 import { UserError } from '../util/errors.js';
 
+/** A path from here when it lies below here, else as it is. */
+function shortPath(path: string): string {
+  const near = relative(process.cwd(), path);
+  return near.startsWith('..') ? path : near;
+}
+
 /** The spelling of a piece in a player's words. */
 export function pieceSpelling(piece: ProgrammePiece): string {
   if (piece.strategy === 'fixed') return `fixed ${formatRange(piece.window ?? DEFAULT_WINDOW)}`;
@@ -36,7 +42,7 @@ export function runningOrder(pieces: readonly ProgrammePiece[]): string {
 export function reportProgrammeCheck(file: string, io: CommandIo): ProgrammeCheck {
   const check = checkProgramme(readTextFile(file), file);
   for (const problem of check.problems) io.stderr.write(formatProblem(file, problem, check.source) + '\n');
-  const setupName = check.setupFile && relative(process.cwd(), check.setupFile);
+  const setupName = check.setupFile && shortPath(check.setupFile);
   if (check.setup && setupName) for (const problem of check.setup.problems) io.stderr.write(formatProblem(setupName, problem, check.setup.source) + '\n');
   if (check.programme) {
     const p = check.programme;
@@ -54,7 +60,7 @@ export function registerProgramme(program: Command, io: CommandIo): void {
     .argument('<concert.json>', 'a programme file (run "diesis check" on it to see every problem)')
     .action((file: string) => {
       const programme = loadProgrammeFile(file);
-      io.stdout.write(`${programme.name ?? file}  (setup ${programme.base.json.name ?? relative(process.cwd(), programme.setupFile)})\n`);
+      io.stdout.write(`${programme.name ?? file}  (setup ${programme.base.json.name ?? shortPath(programme.setupFile)})\n`);
       io.stdout.write(runningOrder(programme.pieces) + '\n');
     });
 }

@@ -14,6 +14,7 @@ import { Bridge, type BridgeNotice } from './bridge.js';
 import { LiveView } from './display.js';
 import { Recorder } from './recorder.js';
 import { openStagePage, type StageLink, type StagePageRequest } from '../page/stage-link.js';
+import type { StageControlResult } from '../page/stage-state.js';
 
 export interface SessionOptions {
   readonly inputs: readonly string[];
@@ -37,6 +38,8 @@ export interface SessionOptions {
   readonly onEvent?: ((event: RouterEvent) => void) | undefined;
   /** Also serve the stage page (src/page). */
   readonly page?: StagePageRequest | undefined;
+  /** A concert programme (its pieces are in `engine.pieces`): the piece to begin with, 0-based. */
+  readonly startPiece?: number | undefined;
 }
 
 /** A running performance: `stop` ends every note, then closes the log and writes the take. */
@@ -92,10 +95,12 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
   const print = (line: string | undefined): void => {
     if (line !== undefined && lines) io.stdout.write(line + '\n');
   };
+  let countPieces = (): void => undefined;
   const { router, tally } = createEngine({
     ...options.engine,
     speller: options.speller,
     observer: (e) => {
+      if (e.type === 'piece') countPieces();
       options.onEvent?.(e);
       page?.event(e);
       log?.write(logLine(e));
@@ -127,7 +132,17 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
   }
   const redraw = screen ? setInterval(() => io.stdout.write(`\u001b[H\u001b[2J${view?.frame() ?? ''}\n`), 100) : undefined;
   const opened = bridge;
-  page?.attach({ router, speller: options.speller, tuning: options.engine.tuning, reference: options.engine.reference, strategy: options.strategy, send: (m) => opened.send(m), clock: () => performance.now(), synthConnected: () => opened.outputConnected });
+  if (options.startPiece !== undefined) opened.send(router.goToPiece(performance.now(), options.startPiece).messages);
+  let pieceChanges = 0;
+  const piece = options.engine.pieces
+    ? (step: 1 | -1): StageControlResult => {
+        const before = pieceChanges;
+        opened.send(router.act(performance.now(), { action: { name: step > 0 ? 'next-piece' : 'previous-piece' }, on: true }));
+        return pieceChanges > before ? { ok: true } : { ok: false, reason: step > 0 ? 'this is the last piece of the programme' : 'this is the first piece of the programme' };
+      }
+    : undefined;
+  countPieces = () => pieceChanges++;
+  page?.attach({ router, speller: options.speller, tuning: options.engine.tuning, reference: options.engine.reference, strategy: options.strategy, send: (m) => opened.send(m), clock: () => performance.now(), synthConnected: () => opened.outputConnected, piece });
   let stopped = false;
   return {
     bridge: opened,

@@ -132,7 +132,7 @@ export function checkProgramme(text: string, file: string): ProgrammeCheck {
     }
   }
   const baseJson: SetupJson = setup?.setup?.json ?? {};
-  const mode: OutputMode = baseJson.output?.mode ?? 'bend';
+  const mode: OutputMode = baseJson.output?.mode ?? modeOf(setup?.source.value);
   const pieces: ProgrammePiece[] = [];
   const titles = new Map<string, number>();
   (Array.isArray(raw.pieces) ? raw.pieces : []).forEach((value: unknown, i) => {
@@ -185,6 +185,12 @@ export function checkProgramme(text: string, file: string): ProgrammeCheck {
   const ok = parsed.success && setup?.setup !== undefined && !problems.some((p) => !p.warning);
   const programme = ok && parsed.success && setup?.setup && setupFile !== undefined ? { file, name: parsed.data.name, setupFile, base: setup.setup, pieces } : undefined;
   return { programme, problems, source, setup, setupFile };
+}
+
+/** The output mode a setup names, even when the setup has problems elsewhere. */
+function modeOf(value: unknown): OutputMode {
+  const parsed = setupSchema.shape.output.safeParse((value as { output?: unknown } | undefined)?.output);
+  return (parsed.success ? parsed.data?.mode : undefined) ?? 'bend';
 }
 
 function defaultTuning(): TuningPreset {
