@@ -244,3 +244,24 @@ describe('resume after a crash (a child process killed mid-concert)', () => {
     expect(readConcertPlace(programme)).toEqual({ index: 0, title: 'Prelude on a ground in D minor' });
   }, 60_000);
 });
+
+describe('the README’s programme', () => {
+  it('loads as printed (beside the example base setup) and plays the order it describes', async () => {
+    const readme = readFileSync(join(root, 'README.md'), 'utf8');
+    const section = readme.slice(readme.indexOf('### Concert programme'));
+    const block = /```jsonc\n([\s\S]*?)```/u.exec(section)?.[1];
+    expect(block).toBeDefined();
+    const dir = tempDir('diesis-readme-');
+    copyFileSync(join(root, 'presets/programmes/stage-keyboard.json'), join(dir, 'stage-keyboard.json'));
+    writeFileSync(join(dir, 'concert.json'), block!);
+    const programme = loadProgrammeFile(join(dir, 'concert.json'));
+    expect(programme.pieces.map((p) => [p.title, p.tuning.id, p.reference.hz.valueOf(), p.strategy, p.key && formatSpelledPitch({ ...p.key.tonic, octave: 4 })])).toEqual([
+      ['Ground in D minor', 'meantone-1-4', 415, 'key', 'D4'],
+      // The reference is the base setup's (A4 = 440) when the piece names none.
+      ['Drones', 'pythagorean', 440, 'fixed', undefined],
+      ['Rondo', 'werckmeister-3', 440, 'follow', 'G4'],
+    ]);
+    const { code } = await runCli('check', join(dir, 'concert.json'));
+    expect(code).toBe(0);
+  });
+});
