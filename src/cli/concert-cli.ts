@@ -29,14 +29,14 @@ const PIECE_OPTIONS: ReadonlyArray<readonly [keyof EngineCliOptions, string]> = 
   ['score', '--score'],
 ];
 
-async function askYes(question: string, io: CommandIo): Promise<boolean> {
+/** Asks on the terminal; Enter or an answer starting with y is yes. */
+async function askYes(question: string): Promise<boolean> {
   const rl = createInterface({ input: process.stdin, output: process.stderr });
   try {
     const text = (await rl.question(question)).trim().toLowerCase();
     return text === '' || text.startsWith('y');
   } finally {
     rl.close();
-    void io;
   }
 }
 
@@ -50,7 +50,7 @@ export async function openConcert(cli: EngineCliOptions & { programme?: string; 
   const programme = loadProgrammeFile(file);
   const choice: ResumeChoice = cli.resume ? 'resume' : cli.fromStart ? 'from-start' : process.stdin.isTTY && process.stderr.isTTY ? 'ask' : 'tell';
   const titles = programme.pieces.map((p) => p.title);
-  const { index, note } = await startingPiece(readConcertPlace(file), titles, choice, (q) => askYes(q, io));
+  const { index, note } = await startingPiece(readConcertPlace(file), titles, choice, askYes);
   if (note) io.stderr.write(`diesis: ${note}\n`);
   let pieces = new Concert(programme);
   let warned = false;

@@ -47,9 +47,10 @@ export function registerPlay(program: Command, io: CommandIo): void {
     .option('--resume', 'with --programme: start at the piece where the concert was when diesis last stopped')
     .option('--from-start', 'with --programme: start at the first piece, wherever the concert was');
   addEngineOptions(command).action(async (cli: PlayOptions) => {
+    if (cli.programme === undefined && (cli.resume || cli.fromStart)) throw new UserError(`${cli.resume ? '--resume' : '--from-start'} belongs with --programme`, 2);
     const concert = cli.programme === undefined ? undefined : await openConcert(cli, io);
     const resolved = resolveEngineCli(concert ? { ...cli, setup: concert.programme.setupFile } : cli);
-    if (concert) concert.useBase(resolved.options.synthA4);
+    if (concert) concert.useBase(resolveEngineOptions(resolved.options).synthA4); // resolved: a piece after one that retuned the synth gets the base A4 back
     const inputs = cli.in ?? [];
     if (inputs.length === 0 || !cli.out) throw new UserError('play needs --in PORT and --out PORT (run "diesis ports" to list them)', 2);
     const inputFiles = [...engineInputFiles(resolved), ...(concert ? [concert.programme.file] : [])];

@@ -43,6 +43,17 @@ describe('TuningInForce: what new notes are tuned with', () => {
     expect(force.tables.now(false, () => undefined).tune(spellKey(DEFAULT_WINDOW, 64)).hz).toBeCloseTo(PYTHAGOREAN_E4_AT_440, 6);
   });
 
+  it('takes a synth retuned between pieces (its own A4) when the change gives one', () => {
+    const force = new TuningInForce(new PitchTable(pythagorean.tuning, A440, 440));
+    const a4 = spellKey(DEFAULT_WINDOW, 69);
+    expect(force.tables.now(false, () => undefined).tune(a4).offset.cents).toBeCloseTo(0, 9);
+    force.change({ ...toPythagorean, synthA4: 415 });
+    // A4 = 440 Hz on a synth whose own A4 is 415: 1200·log2(440/415) ≈ 101.3 cents above its key 69.
+    expect(force.tables.now(false, () => undefined).tune(a4).offset.cents).toBeCloseTo(1200 * Math.log2(440 / 415), 9);
+    force.change(toPythagorean);
+    expect(force.tables.now(false, () => undefined).tune(a4).offset.cents).toBeCloseTo(1200 * Math.log2(440 / 415), 9); // kept until changed again
+  });
+
   it('makes an adaptive tuner only for an adaptive tuning', () => {
     const force = new TuningInForce(new PitchTable(meantone.tuning, A440, 440));
     expect(force.adaptive).toBeUndefined();
