@@ -117,7 +117,7 @@ export class LiveView {
   }
 
   private tuningWords(e: Extract<RouterEvent, { type: 'tuning' }>): string {
-    return `new notes in ${e.name} (${e.tuningId}), ${formatReference(e.reference, this.names)}; notes sounding finish in theirs`;
+    return `new notes in ${e.name} (${e.tuningId}), ${formatReference(e.reference, this.names)}`;
   }
 
   private warningOf(e: RouterEvent): string | undefined {

@@ -74,11 +74,11 @@ describe('the stage display across a tuning change', () => {
     engine.router.act(5, { action: { name: 'set-tuning', tuning: { id: 'pythagorean', name: pythagorean.name, tuning: pythagorean.tuning } }, on: true });
     const change = events.find((e) => e.type === 'tuning')!;
     view.event(change);
-    expect(view.line(change)).toBe(`== new notes in ${pythagorean.name} (pythagorean), A4=440; notes sounding finish in theirs`);
-    expect(view.frame().split('\n')[1]).toBe(`new notes in ${pythagorean.name} (pythagorean), A4=440; notes sounding finish in theirs`);
+    expect(view.line(change)).toBe(`== new notes in ${pythagorean.name} (pythagorean), A4=440`);
+    expect(view.frame().split('\n')[1]).toBe(`new notes in ${pythagorean.name} (pythagorean), A4=440`);
     const piece: RouterEvent = { type: 'piece', time: 6, index: 1, count: 3, title: 'Drones' };
     view.event(piece);
     expect(view.line(piece)).toBe('== piece 2 of 3: Drones');
-    expect(view.frame().split('\n').slice(1, 3)).toEqual(['piece 2 of 3: Drones', `new notes in ${pythagorean.name} (pythagorean), A4=440; notes sounding finish in theirs`]);
+    expect(view.frame().split('\n').slice(1, 3)).toEqual(['piece 2 of 3: Drones', `new notes in ${pythagorean.name} (pythagorean), A4=440`]);
   });
 });
