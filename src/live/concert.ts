@@ -42,7 +42,7 @@ export class Concert implements PieceSource {
       count: this.count,
       title: piece.title,
       tuning: { id: piece.tuning.id, name: piece.tuning.name, tuning: piece.tuning.tuning, reference: piece.reference, synthA4: piece.synthA4 ?? this.baseSynthA4 },
-      spelling: { base: pieceSpeller(piece), key: piece.key },
+      spelling: { base: pieceSpeller(piece), key: piece.key, strategy: piece.score === undefined ? piece.strategy : `score, else ${piece.strategy}` },
     };
   }
 }

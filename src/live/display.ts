@@ -50,6 +50,7 @@ export class LiveView {
   /** The piece of a concert programme and the tuning in force, once either has changed. */
   private pieceNow: string | undefined;
   private tuningNow: string | undefined;
+  private strategyNow: string | undefined;
 
   constructor(
     private readonly sources: ViewSources,
@@ -84,6 +85,7 @@ export class LiveView {
         break;
       case 'piece':
         this.pieceNow = this.pieceWords(e);
+        this.strategyNow = e.strategy;
         break;
       case 'tuning':
         this.tuningNow = this.tuningWords(e);
@@ -148,7 +150,8 @@ export class LiveView {
 
   /** The whole screen, for a terminal. */
   frame(): string {
-    const { speller, strategy, title, tally } = this.sources;
+    const { speller, title, tally } = this.sources;
+    const strategy = this.strategyNow ?? this.sources.strategy;
     const s = this.style;
     const o = speller.overrides;
     const on = (flag: boolean, label: string): string => (flag ? s.bold(s.green(`[${label}]`)) : s.dim(` ${label} `));

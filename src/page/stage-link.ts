@@ -98,15 +98,17 @@ export async function openStagePage(request: StagePageRequest): Promise<StageLin
   // A programme's piece and a tuning changed while playing: what the page shows from then on.
   let piece: StagePiece = lonePiece(request.pieceTitle);
   let tuning: Extract<RouterEvent, { type: 'tuning' }> | undefined;
+  let strategy: string | undefined;
   const picture = (t: Tuning, reference: Reference, name: string): string =>
     chartSvg(buildChart({ tuning: t, reference, range: parseFifthsRange('Gb..A#'), octave: 4, wolfLimits: DEFAULT_WOLF_LIMITS }), { title: name });
   let drawn: { readonly tuning: Tuning; readonly reference: Reference; readonly svg: string } | undefined;
   /** The sources as they are now: the piece and tuning in force replace those the session began with. */
   const current = (base: StageSources): StageSources => {
-    if (!tuning) return { ...base, piece };
+    const withPiece = { ...base, piece, strategy: strategy ?? base.strategy };
+    if (!tuning) return withPiece;
     const t = tuning;
     if (!drawn || drawn.tuning !== t.tuning || drawn.reference !== t.reference) drawn = { tuning: t.tuning, reference: t.reference, svg: picture(t.tuning, t.reference, t.name) };
-    return { ...base, piece, tuning: t.tuning, reference: t.reference, tuningId: t.tuningId, tuningName: t.name, picture: drawn.svg };
+    return { ...withPiece, tuning: t.tuning, reference: t.reference, tuningId: t.tuningId, tuningName: t.name, picture: drawn.svg };
   };
   return {
     server,
@@ -135,6 +137,7 @@ export async function openStagePage(request: StagePageRequest): Promise<StageLin
       }, Math.ceil(1000 / PAGE_UPDATES_PER_SECOND));
     },
     event(e) {
+      if (e.type === 'piece') strategy = e.strategy;
       if (e.type === 'piece') piece = { title: e.title, index: e.index, count: e.count, canPrevious: e.index > 0, canNext: e.index < e.count - 1 };
       if (e.type === 'tuning') tuning = e;
       if (tracker) tracker.event(e);

@@ -38,7 +38,7 @@ export type RouterEvent =
   /** New notes take this tuning and reference from now on (notes sounding keep theirs). */
   | { readonly type: 'tuning'; readonly time: number; readonly tuningId: string; readonly name: string; readonly tuning: Tuning; readonly reference: Reference }
   /** A concert programme moved to a piece (0-based `index` of `count`). */
-  | { readonly type: 'piece'; readonly time: number; readonly index: number; readonly count: number; readonly title: string };
+  | { readonly type: 'piece'; readonly time: number; readonly index: number; readonly count: number; readonly title: string; readonly strategy: string };
 
 export type RouterEventType = RouterEvent['type'];
 export type NoteEvent = Extract<RouterEvent, { type: 'note' }>;

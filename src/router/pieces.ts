@@ -11,7 +11,7 @@ export interface PieceChange {
   /** The piece's tuning and reference (the base setup's when the piece names none). */
   readonly tuning: TuningChange;
   /** The piece's spelling strategy (over its score, when it follows one) and its declared key. */
-  readonly spelling: { readonly base: Speller; readonly key: DeclaredKey | undefined };
+  readonly spelling: { readonly base: Speller; readonly key: DeclaredKey | undefined; /** The strategy's name, for displays. */ readonly strategy: string };
 }
 
 /**

@@ -139,7 +139,7 @@ export class Router {
     const speller = this.setup.speller;
     if (speller instanceof ControlledSpeller) speller.replaceBase(change.spelling.base, change.spelling.key);
     this.changeTuning(change.tuning);
-    this.observe?.({ type: 'piece', time: this.now, index: change.index, count: change.count, title: change.title });
+    this.observe?.({ type: 'piece', time: this.now, index: change.index, count: change.count, title: change.title, strategy: change.spelling.strategy });
   }
 
   /** True while new notes sound in 12-ET at the reference (the pass control, for comparison). */

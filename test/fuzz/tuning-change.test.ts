@@ -25,9 +25,9 @@ function change(id: string, reference: string): TuningChange {
 /** Three pieces, each with its tuning and a fresh speller of its own strategy. */
 function pieces(adaptive: boolean): PieceSource {
   const list: Array<() => PieceChange> = [
-    () => ({ index: 0, count: 3, title: 'one', tuning: change('meantone-1-4', 'A4=415'), spelling: { base: createStrategy({ strategy: 'key', key: parseKey('D minor') }), key: parseKey('D minor') } }),
-    () => ({ index: 1, count: 3, title: 'two', tuning: change(adaptive ? 'just-adaptive' : 'pythagorean', 'A4=440'), spelling: { base: createStrategy({ strategy: 'fixed' }), key: undefined } }),
-    () => ({ index: 2, count: 3, title: 'three', tuning: change('werckmeister-3', 'C4=256'), spelling: { base: createStrategy({ strategy: 'follow' }), key: undefined } }),
+    () => ({ index: 0, count: 3, title: 'one', tuning: change('meantone-1-4', 'A4=415'), spelling: { base: createStrategy({ strategy: 'key', key: parseKey('D minor') }), key: parseKey('D minor'), strategy: 'key' } }),
+    () => ({ index: 1, count: 3, title: 'two', tuning: change(adaptive ? 'just-adaptive' : 'pythagorean', 'A4=440'), spelling: { base: createStrategy({ strategy: 'fixed' }), key: undefined, strategy: 'fixed' } }),
+    () => ({ index: 2, count: 3, title: 'three', tuning: change('werckmeister-3', 'C4=256'), spelling: { base: createStrategy({ strategy: 'follow' }), key: undefined, strategy: 'follow' } }),
   ];
   let at = 0;
   return {

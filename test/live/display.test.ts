@@ -76,9 +76,10 @@ describe('the stage display across a tuning change', () => {
     view.event(change);
     expect(view.line(change)).toBe(`== new notes in ${pythagorean.name} (pythagorean), A4=440`);
     expect(view.frame().split('\n')[1]).toBe(`new notes in ${pythagorean.name} (pythagorean), A4=440`);
-    const piece: RouterEvent = { type: 'piece', time: 6, index: 1, count: 3, title: 'Drones' };
+    const piece: RouterEvent = { type: 'piece', time: 6, index: 1, count: 3, title: 'Drones', strategy: 'follow' };
     view.event(piece);
     expect(view.line(piece)).toBe('== piece 2 of 3: Drones');
+    expect(view.frame().split('\n')[3]).toMatch(/^spelling follow /u); // the piece's strategy, not the session's first
     expect(view.frame().split('\n').slice(1, 3)).toEqual(['piece 2 of 3: Drones', `new notes in ${pythagorean.name} (pythagorean), A4=440`]);
   });
 });
