@@ -265,3 +265,22 @@ describe('the README’s programme', () => {
     expect(code).toBe(0);
   });
 });
+
+describe('a piece that follows its score', () => {
+  it('is checked with its score read, shown in the running order, and spelled from the score afresh each time it starts', async () => {
+    const dir = tempDir('diesis-score-');
+    copyFileSync(join(root, 'presets/programmes/stage-keyboard.json'), join(dir, 'stage-keyboard.json'));
+    copyFileSync(join(root, 'test/fixtures/score/features.musicxml'), join(dir, 'features.musicxml'));
+    const file = join(dir, 'concert.json');
+    writeFileSync(file, JSON.stringify({ setup: 'stage-keyboard.json', pieces: [{ title: 'Plain' }, { title: 'Scored', score: 'features.musicxml', tuning: 'meantone-1-6' }] }, null, 2));
+    const { code, stdout } = await runCli('programme', file);
+    expect(code).toBe(0);
+    expect(stdout).toMatch(/^2 +Scored +meantone-1-6 +A4=440 +follow from C major +features\.musicxml$/mu);
+    const concert = new Concert(loadProgrammeFile(file));
+    const scored = concert.at(1)!;
+    expect(scored.spelling.strategy).toBe('score, else follow');
+    const again = concert.at(1)!;
+    expect(again.spelling.base).not.toBe(scored.spelling.base); // a fresh follower: the score from its first bar
+    expect(concert.at(0)!.spelling.strategy).toBe('follow');
+  });
+});
