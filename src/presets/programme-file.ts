@@ -13,11 +13,6 @@ import { adaptiveFits, adaptiveRefusal, checkSetup, semanticChecks, setupPath, t
 import { setupSchema, type SetupJson } from './setup-schema.js';
 import { loadTuningPreset, type TuningPreset } from './tuning-presets.js';
 
-/**
- * A concert programme: one base setup (the instrument, the ports' settings, the pedals) and an
- * ordered list of pieces, each naming the parts of a setup it changes. Paths are read from the
- * programme's own folder.
- */
 const shape = setupSchema.shape;
 
 /** One piece: a title and what it changes. A field it leaves out is the base setup's. */
@@ -30,6 +25,11 @@ export const pieceSchema = z.strictObject({
   output: shape.output,
 });
 
+/**
+ * A concert programme: one base setup (the instrument, the output, the pedals) and an ordered list
+ * of pieces, each naming the parts of a setup it changes. Paths are read from the programme's own
+ * folder.
+ */
 export const programmeSchema = z.strictObject({
   $schema: z.string().optional(),
   name: z.string().optional(),
@@ -139,7 +139,7 @@ export function checkProgramme(text: string, file: string): ProgrammeCheck {
     const at = `$.pieces[${i}]`;
     const result = pieceSchema.safeParse(value, { reportInput: true });
     if (!result.success) {
-      for (const p of zodProblems(result.error)) problems.push({ ...p, path: placeIn({}, '$', at) + p.path.slice(1) });
+      for (const p of zodProblems(result.error)) problems.push({ ...p, path: at + p.path.slice(1) });
       return;
     }
     const piece = result.data;
@@ -152,17 +152,18 @@ export function checkProgramme(text: string, file: string): ProgrammeCheck {
       }
     }
     if (piece.spelling?.gatherMs !== undefined) problems.push({ path: `${at}.spelling.gatherMs`, message: 'belongs to the base setup: chord gathering stays the same for the whole concert' });
-    // The piece as a setup of its own (the base's values where it has none), checked as a setup is.
+    // The piece as a setup of its own, checked as a setup is: its own tuning and score (read from
+    // the programme's folder; the base's were read from the base setup's), the reference and the
+    // spelling merged over the base's, the base's output mode.
     const merged: SetupJson = {
-      tuning: piece.tuning ?? baseJson.tuning,
+      tuning: piece.tuning,
       reference: piece.reference ?? baseJson.reference,
-      score: piece.score ?? baseJson.score,
+      score: piece.score,
       spelling: spellingOf(baseJson.spelling, piece.spelling),
       output: { mode },
     };
     const found: Problem[] = [];
-    // Relative paths: the piece's from the programme's folder, the base's from the base setup's.
-    const values = semanticChecks({ ...merged, score: piece.score ?? undefined, tuning: piece.tuning ?? undefined }, file, found);
+    const values = semanticChecks(merged, file, found);
     const fromBase = { tuning: baseJson.tuning === undefined || piece.tuning !== undefined ? undefined : setup?.setup?.tuning, score: piece.score !== undefined ? undefined : setup?.setup?.score };
     for (const p of found) problems.push({ ...p, path: placeIn(piece as Record<string, unknown>, p.path, at) });
     const tuning = values.tuning ?? fromBase.tuning ?? (piece.tuning === undefined ? defaultTuning() : undefined);
