@@ -6,6 +6,7 @@ import type { RouterEvent } from '../router/router.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from '../util/io.js';
 import type { EngineCliOptions } from './engine-options.js';
+import type { EngineOptionsInput } from '../router/setup.js';
 
 /** What `play --programme` adds to a session: the pieces, where to begin, and keeping the place. */
 export interface OpenConcert {
@@ -14,8 +15,8 @@ export interface OpenConcert {
   readonly start: number;
   /** Hears the engine's events: on each new piece the place is kept (after the MIDI path has moved on). */
   readonly onEvent: (e: RouterEvent) => void;
-  /** The synth's A4 the base setup (or the command line) gives, for pieces that do not change it. */
-  useBase(synthA4: number | undefined): void;
+  /** The engine options of the base setup and the command line, for what pieces do not change. */
+  useBase(options: EngineOptionsInput): void;
 }
 
 /** The options a programme's pieces set: given beside --programme they would be overridden at the first piece. */
@@ -60,8 +61,8 @@ export async function openConcert(cli: EngineCliOptions & { programme?: string; 
       return pieces;
     },
     start: index,
-    useBase(synthA4) {
-      pieces = new Concert(programme, synthA4);
+    useBase(options) {
+      pieces = new Concert(programme, options);
     },
     onEvent(e) {
       if (e.type !== 'piece') return;

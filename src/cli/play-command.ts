@@ -50,7 +50,7 @@ export function registerPlay(program: Command, io: CommandIo): void {
     if (cli.programme === undefined && (cli.resume || cli.fromStart)) throw new UserError(`${cli.resume ? '--resume' : '--from-start'} belongs with --programme`, 2);
     const concert = cli.programme === undefined ? undefined : await openConcert(cli, io);
     const resolved = resolveEngineCli(concert ? { ...cli, setup: concert.programme.setupFile } : cli);
-    if (concert) concert.useBase(resolveEngineOptions(resolved.options).synthA4); // resolved: a piece after one that retuned the synth gets the base A4 back
+    if (concert) concert.useBase(resolved.options);
     const inputs = cli.in ?? [];
     if (inputs.length === 0 || !cli.out) throw new UserError('play needs --in PORT and --out PORT (run "diesis ports" to list them)', 2);
     const inputFiles = [...engineInputFiles(resolved), ...(concert ? [concert.programme.file] : [])];

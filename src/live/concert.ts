@@ -1,5 +1,8 @@
 import type { ProgrammeFile, ProgrammePiece } from '../presets/programme-file.js';
+import type { OutputStrategy } from '../router/output.js';
 import type { PieceChange, PieceSource } from '../router/pieces.js';
+import { PitchTable } from '../router/pitch-table.js';
+import { createOutput, resolveEngineOptions, type EngineOptionsInput } from '../router/setup.js';
 import { ScoreSpeller } from '../score/score-speller.js';
 import type { Speller } from '../spelling/speller.js';
 import { createStrategy } from '../spelling/strategy.js';
@@ -14,11 +17,41 @@ export function pieceSpeller(piece: ProgrammePiece): Speller {
 export class Concert implements PieceSource {
   private current = -1;
 
+  private readonly baseSynthA4: number | undefined;
+  /** Whether any piece changes the output: then every piece brings its output (the base's when it changes nothing). */
+  private readonly outputs: boolean;
+
   constructor(
     readonly programme: ProgrammeFile,
-    /** The synth's A4 of the base setup (or the command line): a piece that does not change it has this one. */
-    private readonly baseSynthA4: number | undefined = undefined,
-  ) {}
+    /** The engine options of the base setup (and the command line): what a piece does not change. */
+    private readonly base: EngineOptionsInput | undefined = undefined,
+  ) {
+    this.baseSynthA4 = base && resolveEngineOptions(base).synthA4;
+    this.outputs = base !== undefined && programme.pieces.some((p) => p.output !== undefined);
+  }
+
+  /** The piece's output: the base's options with the piece's settings over them, tuned from its table. */
+  private outputOf(piece: ProgrammePiece, speller: Speller, synthA4: number | undefined): OutputStrategy | undefined {
+    if (!this.outputs || !this.base) return undefined;
+    const o = piece.output;
+    const options = resolveEngineOptions({
+      ...this.base,
+      tuning: piece.tuning.tuning,
+      reference: piece.reference,
+      speller,
+      synthA4,
+      ...(o && {
+        channels: o.channelList ?? this.base.channels,
+        bendRange: o.bendRange ?? this.base.bendRange,
+        sendBendRange: o.sendBendRange ?? this.base.sendBendRange,
+        releaseGuardMs: o.releaseGuardMs ?? this.base.releaseGuardMs,
+        mtsDevice: o.mtsDevice ?? this.base.mtsDevice,
+        mtsProgram: o.mtsProgram ?? this.base.mtsProgram,
+        octaveForm: o.octaveForm ?? this.base.octaveForm,
+      }),
+    });
+    return createOutput(options, new PitchTable(options.tuning, options.reference, options.synthA4));
+  }
 
   /** 0-based; −1 before the first piece has begun. */
   get index(): number {
@@ -37,12 +70,15 @@ export class Concert implements PieceSource {
     const piece = this.programme.pieces[index];
     if (!piece) return undefined;
     this.current = index;
+    const speller = pieceSpeller(piece);
+    const synthA4 = piece.synthA4 ?? this.baseSynthA4;
     return {
       index,
       count: this.count,
       title: piece.title,
-      tuning: { id: piece.tuning.id, name: piece.tuning.name, tuning: piece.tuning.tuning, reference: piece.reference, synthA4: piece.synthA4 ?? this.baseSynthA4 },
-      spelling: { base: pieceSpeller(piece), key: piece.key, strategy: piece.score === undefined ? piece.strategy : `score, else ${piece.strategy}` },
+      tuning: { id: piece.tuning.id, name: piece.tuning.name, tuning: piece.tuning.tuning, reference: piece.reference, synthA4 },
+      output: this.outputOf(piece, speller, synthA4),
+      spelling: { base: speller, key: piece.key, strategy: piece.score === undefined ? piece.strategy : `score, else ${piece.strategy}` },
     };
   }
 }

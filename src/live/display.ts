@@ -90,6 +90,9 @@ export class LiveView {
       case 'tuning':
         this.tuningNow = this.tuningWords(e);
         break;
+      case 'output':
+        if (e.waiting) this.remember("the piece's output settings wait until nothing sounds");
+        break;
       case 'panic':
         this.sounding.clear();
         this.sustain = false;
@@ -110,6 +113,7 @@ export class LiveView {
     }
     if (e.type === 'piece') return this.style.bold(`== ${this.pieceWords(e)}`);
     if (e.type === 'tuning') return this.style.bold(`== ${this.tuningWords(e)}`);
+    if (e.type === 'output') return this.style.bold(e.waiting ? "== the piece's output settings wait until nothing sounds" : "== the piece's output settings are in force");
     const warning = this.warningOf(e);
     return warning && this.style.yellow(`! ${warning}`);
   }

@@ -43,11 +43,15 @@ export const programmeSchema = z.strictObject({
 export type PieceJson = z.infer<typeof pieceSchema>;
 
 /**
- * The output settings a piece may change between pieces: those that are part of how new notes are
- * tuned. The rest (mode, channels, ranges, release guard) are the instrument's and stay for the
- * whole concert: changing them would mean re-configuring the synth under notes still sounding.
+ * The output settings a piece may change. `synthA4` is part of how new notes are tuned and applies
+ * at once; the others re-configure the synth (ranges, channels, the release guard), so they take
+ * over only when nothing sounds. The output mode and the bend layout are the instrument's (the
+ * synth is set up for them) and stay for the whole concert.
  */
-export const PIECE_OUTPUT_SETTINGS = ['synthA4'] as const;
+export const PIECE_OUTPUT_SETTINGS = ['synthA4', 'channels', 'bendRange', 'sendBendRange', 'releaseGuardMs', 'mtsDevice', 'mtsProgram', 'octaveForm'] as const;
+
+/** A piece's output settings beyond the synth's A4 (undefined when it has none). */
+export type PieceOutput = Omit<NonNullable<SetupJson['output']>, 'mode' | 'synthA4' | 'layout'>;
 
 /** A piece as it plays: every value resolved over the base setup and loaded. */
 export interface ProgrammePiece {
@@ -63,6 +67,8 @@ export interface ProgrammePiece {
   readonly scorePath: string | undefined;
   /** The synth's own A4 for this piece, when the piece changes it. */
   readonly synthA4: number | undefined;
+  /** The output settings the piece changes (besides `synthA4`), with its channels parsed. */
+  readonly output: (PieceOutput & { readonly channelList: readonly number[] | undefined }) | undefined;
 }
 
 export interface ProgrammeFile {
@@ -149,6 +155,7 @@ export function checkProgramme(text: string, file: string): ProgrammeCheck {
     for (const field of Object.keys(piece.output ?? {})) {
       if (!(PIECE_OUTPUT_SETTINGS as readonly string[]).includes(field)) {
         problems.push({ path: `${at}.output.${field}`, message: `belongs to the base setup: the output's ${field} stays the same for the whole concert (a piece may change ${PIECE_OUTPUT_SETTINGS.join(', ')})` });
+        continue;
       }
     }
     if (piece.spelling?.gatherMs !== undefined) problems.push({ path: `${at}.spelling.gatherMs`, message: 'belongs to the base setup: chord gathering stays the same for the whole concert' });
@@ -160,7 +167,7 @@ export function checkProgramme(text: string, file: string): ProgrammeCheck {
       reference: piece.reference ?? baseJson.reference,
       score: piece.score,
       spelling: spellingOf(baseJson.spelling, piece.spelling),
-      output: { mode },
+      output: { ...piece.output, synthA4: undefined, mode },
     };
     const found: Problem[] = [];
     const values = semanticChecks(merged, file, found);
@@ -181,11 +188,18 @@ export function checkProgramme(text: string, file: string): ProgrammeCheck {
       score: values.score ?? fromBase.score,
       scorePath: piece.score ?? baseJson.score,
       synthA4: piece.output?.synthA4,
+      output: outputOf(piece.output, values.channels),
     });
   });
   const ok = parsed.success && setup?.setup !== undefined && !problems.some((p) => !p.warning);
   const programme = ok && parsed.success && setup?.setup && setupFile !== undefined ? { file, name: parsed.data.name, setupFile, base: setup.setup, pieces } : undefined;
   return { programme, problems, source, setup, setupFile };
+}
+
+function outputOf(output: PieceJson['output'], channelList: readonly number[] | undefined): ProgrammePiece['output'] {
+  if (!output) return undefined;
+  const { mode: _mode, synthA4: _a4, layout: _layout, ...rest } = output;
+  return Object.keys(rest).length === 0 ? undefined : { ...rest, channelList };
 }
 
 /** The output mode a setup names, even when the setup has problems elsewhere. */

@@ -37,6 +37,8 @@ export type RouterEvent =
   | { readonly type: 'panic'; readonly time: number; readonly reason: string }
   /** New notes take this tuning and reference from now on (notes sounding keep theirs). */
   | { readonly type: 'tuning'; readonly time: number; readonly tuningId: string; readonly name: string; readonly tuning: Tuning; readonly reference: Reference }
+  /** A piece's output settings: `waiting` while notes still sound, then taken over (`waited`: after those notes ended). */
+  | { readonly type: 'output'; readonly time: number; readonly waiting: boolean; readonly waited?: boolean | undefined }
   /** A concert programme moved to a piece (0-based `index` of `count`). */
   | { readonly type: 'piece'; readonly time: number; readonly index: number; readonly count: number; readonly title: string; readonly strategy: string };
 

@@ -1,5 +1,6 @@
 import type { DeclaredKey } from '../spelling/keys.js';
 import type { Speller } from '../spelling/speller.js';
+import type { OutputStrategy } from './output.js';
 import type { TuningChange } from './tuning-in-force.js';
 
 /** What moving to a piece of a concert programme changes in the engine. */
@@ -11,6 +12,8 @@ export interface PieceChange {
   /** The piece's tuning and reference (the base setup's when the piece names none). */
   readonly tuning: TuningChange;
   /** The piece's spelling strategy (over its score, when it follows one) and its declared key. */
+  /** The piece's own output settings, made into an output: it takes over once nothing sounds. */
+  readonly output?: OutputStrategy | undefined;
   readonly spelling: { readonly base: Speller; readonly key: DeclaredKey | undefined; /** The strategy's name, for displays. */ readonly strategy: string };
 }
 

@@ -59,7 +59,10 @@ export class Router {
   private readonly gatherer: ChordGatherer;
   private readonly context: OutputContext;
   private readonly actions: EngineActions;
-  private readonly everyChannel: readonly number[];
+  private everyChannel: readonly number[];
+  /** The output in force: a piece's output settings replace it once nothing sounds. */
+  private output: OutputStrategy;
+  private pendingOutput: OutputStrategy | undefined;
   /** The tuning and reference new notes take (a set-tuning control or a new piece changes them). */
   private readonly tuning: TuningInForce;
   private readonly observe: ((event: RouterEvent) => void) | undefined;
@@ -73,7 +76,7 @@ export class Router {
 
   constructor(private readonly setup: RouterSetup) {
     const observe = (this.observe = setup.observer);
-    const output = setup.output;
+    const output = (this.output = setup.output);
     this.keyboard = new KeyboardState(setup.wheelRange);
     const tuning = (this.tuning = new TuningInForce(setup.table, setup.tuningAbout));
     this.gatherer = new ChordGatherer(setup.gather ?? 0);
@@ -81,7 +84,7 @@ export class Router {
     const book = (this.book = new VoiceBook({
       noteOff: (voice, velocity) => this.emit(noteOff(voice.placement.channel, voice.placement.key, velocity)),
       ended: (voice, cause) => {
-        if (cause !== 'stolen' && cause !== 'panic') output.voiceEnded(voice.placement, this.now);
+        if (cause !== 'stolen' && cause !== 'panic') this.output.voiceEnded(voice.placement, this.now);
         tuning.adaptive?.ended(this.now, voice.id);
         observe?.({ type: 'voice-ended', time: this.now, id: voice.id, placement: voice.placement, cause });
       },
@@ -139,7 +142,29 @@ export class Router {
     const speller = this.setup.speller;
     if (speller instanceof ControlledSpeller) speller.replaceBase(change.spelling.base, change.spelling.key);
     this.changeTuning(change.tuning);
+    if (change.output) {
+      this.pendingOutput = change.output;
+      if (this.book.size === 0) this.swapOutput(false);
+      else this.observe?.({ type: 'output', time: this.now, waiting: true });
+    }
     this.observe?.({ type: 'piece', time: this.now, index: change.index, count: change.count, title: change.title, strategy: change.spelling.strategy });
+  }
+
+  /**
+   * A piece's output settings (bend range, layout, channels, release guard…) take over only when
+   * nothing sounds: changed under a held note they would move it. Until then new notes go to the
+   * output in force, in the new tuning. The new output's set-up messages go out as it takes over;
+   * panic still covers the channels of every output used.
+   */
+  private swapOutput(waited: boolean): void {
+    const next = this.pendingOutput;
+    if (!next) return;
+    this.pendingOutput = undefined;
+    this.output = next;
+    this.everyChannel = [...new Set([...this.everyChannel, ...next.allChannels, ...next.zoneChannels])];
+    next.start(this.context);
+    if (this.keyboard.wheelValue !== BEND_CENTRE) next.wheel(this.keyboard.wheelValue, this.keyboard.wheelRange, this.now, this.context);
+    this.observe?.({ type: 'output', time: this.now, waiting: false, waited });
   }
 
   /** True while new notes sound in 12-ET at the reference (the pass control, for comparison). */
@@ -170,6 +195,7 @@ export class Router {
   }
 
   private done(): TimedMessage[] {
+    if (this.pendingOutput && this.book.size === 0) this.swapOutput(true);
     const result = this.out;
     this.out = [];
     return result;
@@ -178,7 +204,7 @@ export class Router {
   /** The messages that set a synth up: send at start and whenever the output port (re)appears. */
   start(time: number): TimedMessage[] {
     this.begin(time);
-    this.setup.output.start(this.context);
+    this.output.start(this.context);
     return this.done();
   }
 
@@ -310,14 +336,14 @@ export class Router {
         this.controller(source, message.channel, message.controller, message.value);
         return;
       case 'program':
-        for (const c of this.setup.output.zoneChannels) this.emit(programChange(c, message.program));
+        for (const c of this.output.zoneChannels) this.emit(programChange(c, message.program));
         return;
       case 'channel-pressure':
-        for (const c of this.setup.output.zoneChannels) this.emit(channelPressure(c, message.value));
+        for (const c of this.output.zoneChannels) this.emit(channelPressure(c, message.value));
         return;
       case 'pitch-bend':
         this.keyboard.wheelValue = message.value;
-        this.setup.output.wheel(message.value, this.keyboard.wheelRange, this.now, this.context);
+        this.output.wheel(message.value, this.keyboard.wheelRange, this.now, this.context);
         return;
     }
   }
@@ -350,7 +376,7 @@ export class Router {
 
   /** Tunes, places and starts one note (as the output can sound it: a sample set may lack a spelling). */
   private sound(id: NoteId, wanted: SpelledPitch, velocity: number, adapted?: AdaptedTunedNote): void {
-    const output = this.setup.output;
+    const output = this.output;
     const pitch = output.available ? output.available(wanted) : wanted;
     const tuned = adapted ?? this.tuning.tables.now(this.passThrough, () => this.setup.speller.currentTonic()).tune(pitch);
     this.refusal = undefined;
@@ -380,7 +406,7 @@ export class Router {
 
   /** Respells what sounds now with the context as it is: units retuned in place where they can be, else struck again. */
   private respell(): void {
-    const output = this.setup.output;
+    const output = this.output;
     const plan = planRespelling(this.book.voices(), (v) => this.setup.speller.peek(this.contextOf(v.id, v.velocity)), output.inPlace);
     const table = this.tuning.tables.now(this.passThrough, () => this.setup.speller.currentTonic());
     const restrike = [...plan.restrike];
@@ -397,7 +423,7 @@ export class Router {
   }
 
   private toZone(controller: number, value: number): void {
-    for (const c of this.setup.output.zoneChannels) this.emit(controlChange(c, controller, value));
+    for (const c of this.output.zoneChannels) this.emit(controlChange(c, controller, value));
   }
 
   /** A sustain or sostenuto pedal of one source; the synth hears the pedals' combined state. */
@@ -414,7 +440,7 @@ export class Router {
     if (isParameterController(controller)) {
       const effect = this.keyboard.parameter(source, channel, controller, value);
       if (effect === 'forward') this.toZone(controller, value);
-      else if (effect === 'wheel-range') this.setup.output.wheel(this.keyboard.wheelValue, this.keyboard.wheelRange, this.now, this.context);
+      else if (effect === 'wheel-range') this.output.wheel(this.keyboard.wheelValue, this.keyboard.wheelRange, this.now, this.context);
       return;
     }
     switch (controller) {
@@ -453,11 +479,11 @@ export class Router {
    */
   private resetControllers(source: number): void {
     for (const [controller, value] of RESET_EFFECTS) this.toZone(controller, value);
-    for (const c of this.setup.output.zoneChannels) this.emit(channelPressure(c, 0));
+    for (const c of this.output.zoneChannels) this.emit(channelPressure(c, 0));
     this.pedal(source, CC.sustain, 0);
     this.pedal(source, CC.sostenuto, 0);
     this.keyboard.wheelValue = BEND_CENTRE;
-    this.setup.output.wheel(BEND_CENTRE, this.keyboard.wheelRange, this.now, this.context);
+    this.output.wheel(BEND_CENTRE, this.keyboard.wheelRange, this.now, this.context);
   }
 
   private doPanic(reason: string): void {
@@ -470,7 +496,7 @@ export class Router {
       this.emit(controlChange(c, CC.soft, 0));
       this.emit(controlChange(c, CC.allNotesOff, 0));
     }
-    this.setup.output.panic(this.context, this.now);
+    this.output.panic(this.context, this.now);
     this.tuning.adaptive?.reset();
     this.observe?.({ type: 'panic', time: this.now, reason });
   }

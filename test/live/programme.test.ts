@@ -131,7 +131,7 @@ describe('check and the running order', () => {
         '    { "title": "One", "tuning": "meantone-1-9" },',
         '    { "title": "Two", "spelling": { "strategy": "key", "key": "H minor" } },',
         '    { "title": "Three", "score": "missing.musicxml",',
-        '      "output": { "bendRange": 2 } },',
+        '      "output": { "mode": "pass", "octaveForm": 1 } },',
         '    { "tuning": "pythagorean" },',
         '    { "title": "Five", "reference": "A4=five", "colour": "blue" }',
         '  ]',
@@ -144,12 +144,13 @@ describe('check and the running order', () => {
     expect(lines.slice(0, -1).map((l) => l.replace(dir, 'DIR'))).toEqual([
       expect.stringMatching(/^DIR\/concert\.json:4: pieces\[0\]\.tuning: unknown tuning "meantone-1-9"/u),
       expect.stringMatching(/^DIR\/concert\.json:5: pieces\[1\]\.spelling\.key: .*H minor/u),
-      expect.stringMatching(/^DIR\/concert\.json:7: pieces\[2\]\.output\.bendRange: belongs to the base setup/u),
+      expect.stringMatching(/^DIR\/concert\.json:7: pieces\[2\]\.output\.mode: belongs to the base setup/u),
+      'DIR/concert.json:7: pieces[2].output.octaveForm: does not apply to mode "bend"',
       expect.stringMatching(/^DIR\/concert\.json:6: pieces\[2\]\.score: .*missing\.musicxml/u),
       'DIR/concert.json:8: pieces[3].title: is missing',
       expect.stringMatching(/^DIR\/concert\.json:9: pieces\[4\]: unknown setting "colour"/u),
     ]);
-    expect(lines[lines.length - 1]).toMatch(/6 problems$/u);
+    expect(lines[lines.length - 1]).toMatch(/7 problems$/u);
   });
 
   it('check: a broken base setup is shown in its own file, with its line', async () => {
@@ -282,5 +283,55 @@ describe('a piece that follows its score', () => {
     const again = concert.at(1)!;
     expect(again.spelling.base).not.toBe(scored.spelling.base); // a fresh follower: the score from its first bar
     expect(concert.at(0)!.spelling.strategy).toBe('follow');
+  });
+});
+
+describe('a piece that changes the output settings', () => {
+  it('takes over only when nothing sounds: held notes finish on the old set-up, then the new ranges and channels are sent', () => {
+    const dir = tempDir('diesis-output-');
+    copyFileSync(join(root, 'presets/programmes/stage-keyboard.json'), join(dir, 'stage-keyboard.json'));
+    const file = join(dir, 'concert.json');
+    writeFileSync(
+      file,
+      JSON.stringify({
+        setup: 'stage-keyboard.json',
+        pieces: [
+          { title: 'Wide', tuning: 'meantone-1-4', reference: 'A4=415' },
+          { title: 'Narrow', tuning: 'pythagorean', reference: 'A4=415', output: { channels: '2-5', bendRange: 24 } },
+          { title: 'Wide again', tuning: 'werckmeister-3' },
+        ],
+      }),
+    );
+    const programme = loadProgrammeFile(file);
+    const speller = new ControlledSpeller(pieceSpeller(programme.pieces[0]!));
+    const base = { tuning: programme.base.tuning!.tuning, reference: A440, speller, controls: new ControlMap(programme.base.bindings, speller), channels: programme.base.channels, bendRange: 48 };
+    const rig = new Rig({ ...base, pieces: new Concert(programme, base) });
+    rig.deliver(rig.router.goToPiece(0, 0).messages);
+    expect(rig.model.zone?.members).toHaveLength(15);
+    rig.at(0).cc(64, 127).on(64).off(64);
+    const held = rig.voice(64);
+    rig.at(10).on(20).off(20); // next piece, with E4 still sounding under the pedal
+    expect(rig.events.some((e) => e.type === 'output' && e.waiting)).toBe(true);
+    expect(rig.model.zone?.members).toHaveLength(15); // not yet: the synth is not re-configured under a note
+    rig.at(20).on(76);
+    expect(Math.abs(cents(rig.model.frequency(rig.voice(76)), 2 * pythagoreanE4(415)))).toBeLessThan(AT_48);
+    expect(Math.abs(cents(rig.model.frequency(held), meantoneE4(415)))).toBeLessThan(AT_48);
+    rig.at(30).off(76).cc(64, 0); // nothing is held any more: the piece's output takes over
+    expect(rig.events.some((e) => e.type === 'output' && !e.waiting && e.waited === true)).toBe(true);
+    expect(rig.model.zone?.members).toEqual([1, 2, 3, 4]); // MPE zone of four members (RP-053)
+    expect(rig.model.channels[1]!.bendRange).toBe(24);
+    rig.at(1000).on(69);
+    const a4 = rig.voice(69);
+    expect([1, 2, 3, 4]).toContain(a4.channel);
+    // A4 = 415 Hz with ±24: the bend step is 0.29 cent, half of it 0.15.
+    expect(Math.abs(cents(rig.model.frequency(a4), 415))).toBeLessThan(0.15);
+    rig.at(1010).off(69).after(1000);
+    // The next piece changes nothing in the output: the base's set-up comes back (nothing sounds, so at once).
+    rig.deliver(rig.router.act(3000, { action: { name: 'next-piece' }, on: true }));
+    expect(rig.model.zone?.members).toHaveLength(15);
+    expect(rig.model.channels[1]!.bendRange).toBe(48);
+    rig.at(3010).on(69).off(69).after(1000);
+    expect(Math.abs(cents(rig.model.frequency(rig.voice(69)), 440))).toBeLessThan(AT_48);
+    expect(rig.model.active()).toHaveLength(0);
   });
 });
