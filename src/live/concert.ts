@@ -1,6 +1,5 @@
 import type { ProgrammeFile, ProgrammePiece } from '../presets/programme-file.js';
-import type { OutputStrategy } from '../router/output.js';
-import type { PieceChange, PieceSource } from '../router/pieces.js';
+import type { PieceChange, PieceOutputChange, PieceSource } from '../router/pieces.js';
 import { PitchTable } from '../router/pitch-table.js';
 import { createOutput, resolveEngineOptions, type EngineOptionsInput } from '../router/setup.js';
 import { ScoreSpeller } from '../score/score-speller.js';
@@ -31,7 +30,7 @@ export class Concert implements PieceSource {
   }
 
   /** The piece's output: the base's options with the piece's settings over them, tuned from its table. */
-  private outputOf(piece: ProgrammePiece, speller: Speller, synthA4: number | undefined): OutputStrategy | undefined {
+  private outputOf(piece: ProgrammePiece, speller: Speller, synthA4: number | undefined): PieceOutputChange | undefined {
     if (!this.outputs || !this.base) return undefined;
     const o = piece.output;
     const options = resolveEngineOptions({
@@ -50,7 +49,7 @@ export class Concert implements PieceSource {
         octaveForm: o.octaveForm ?? this.base.octaveForm,
       }),
     });
-    return createOutput(options, new PitchTable(options.tuning, options.reference, options.synthA4));
+    return { strategy: createOutput(options, new PitchTable(options.tuning, options.reference, options.synthA4)), releaseGuardMs: options.releaseGuardMs };
   }
 
   /** 0-based; −1 before the first piece has begun. */

@@ -13,8 +13,14 @@ export interface PieceChange {
   readonly tuning: TuningChange;
   /** The piece's spelling strategy (over its score, when it follows one) and its declared key. */
   /** The piece's own output settings, made into an output: it takes over once nothing sounds. */
-  readonly output?: OutputStrategy | undefined;
+  readonly output?: PieceOutputChange | undefined;
   readonly spelling: { readonly base: Speller; readonly key: DeclaredKey | undefined; /** The strategy's name, for displays. */ readonly strategy: string };
+}
+
+/** An output to take over, and its release guard (how long after the last note it, in turn, must wait). */
+export interface PieceOutputChange {
+  readonly strategy: OutputStrategy;
+  readonly releaseGuardMs: number;
 }
 
 /**

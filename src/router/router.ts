@@ -14,7 +14,7 @@ import { channelOf, keyOfNote, noteId, sourceOf, type NoteId } from './note-id.j
 import type { OutputContext, OutputStrategy } from './output.js';
 import type { PitchTable } from './pitch-table.js';
 import { planRespelling } from './respell.js';
-import type { PieceChange, PieceSource } from './pieces.js';
+import type { PieceChange, PieceOutputChange, PieceSource } from './pieces.js';
 import { TuningInForce, type TuningChange } from './tuning-in-force.js';
 import { VoiceBook } from './voice-book.js';
 
@@ -36,6 +36,8 @@ export interface RouterSetup {
   readonly tuningAbout?: { readonly id: string; readonly name: string } | undefined;
   /** A concert programme: where next-piece and previous-piece lead. */
   readonly pieces?: PieceSource | undefined;
+  /** The output's release guard: a piece's new output takes over only this long after the last note ended. */
+  readonly releaseGuardMs?: number | undefined;
   /** Hears every decision; displays, logs, reports and counters are folds over these events. */
   readonly observer?: ((event: RouterEvent) => void) | undefined;
 }
@@ -62,7 +64,10 @@ export class Router {
   private everyChannel: readonly number[];
   /** The output in force: a piece's output settings replace it once nothing sounds. */
   private output: OutputStrategy;
-  private pendingOutput: OutputStrategy | undefined;
+  private pendingOutput: PieceOutputChange | undefined;
+  /** The release guard of the output in force, and when the last voice ended: a new output waits for both. */
+  private outputGuardMs: number;
+  private lastVoiceEnd = Number.NEGATIVE_INFINITY;
   /** The tuning and reference new notes take (a set-tuning control or a new piece changes them). */
   private readonly tuning: TuningInForce;
   private readonly observe: ((event: RouterEvent) => void) | undefined;
@@ -77,6 +82,7 @@ export class Router {
   constructor(private readonly setup: RouterSetup) {
     const observe = (this.observe = setup.observer);
     const output = (this.output = setup.output);
+    this.outputGuardMs = setup.releaseGuardMs ?? 0;
     this.keyboard = new KeyboardState(setup.wheelRange);
     const tuning = (this.tuning = new TuningInForce(setup.table, setup.tuningAbout));
     this.gatherer = new ChordGatherer(setup.gather ?? 0);
@@ -85,6 +91,7 @@ export class Router {
       noteOff: (voice, velocity) => this.emit(noteOff(voice.placement.channel, voice.placement.key, velocity)),
       ended: (voice, cause) => {
         if (cause !== 'stolen' && cause !== 'panic') this.output.voiceEnded(voice.placement, this.now);
+        this.lastVoiceEnd = this.now;
         tuning.adaptive?.ended(this.now, voice.id);
         observe?.({ type: 'voice-ended', time: this.now, id: voice.id, placement: voice.placement, cause });
       },
@@ -144,27 +151,33 @@ export class Router {
     this.changeTuning(change.tuning);
     if (change.output) {
       this.pendingOutput = change.output;
-      if (this.book.size === 0) this.swapOutput(false);
+      if (this.outputFree()) this.swapOutput(false);
       else this.observe?.({ type: 'output', time: this.now, waiting: true });
     }
     this.observe?.({ type: 'piece', time: this.now, index: change.index, count: change.count, title: change.title, strategy: change.spelling.strategy });
   }
 
   /**
-   * A piece's output settings (bend range, layout, channels, release guard…) take over only when
-   * nothing sounds: changed under a held note they would move it. Until then new notes go to the
+   * A piece's output settings (bend range, channels, release guard…) take over only when nothing
+   * sounds and the release guard has passed since the last note ended: changed under a note or its
+   * release tail they would move it. Until then new notes go to the
    * output in force, in the new tuning. The new output's set-up messages go out as it takes over;
    * panic still covers the channels of every output used.
    */
   private swapOutput(waited: boolean): void {
-    const next = this.pendingOutput;
-    if (!next) return;
+    const change = this.pendingOutput;
+    if (!change) return;
     this.pendingOutput = undefined;
-    this.output = next;
+    const next = (this.output = change.strategy);
+    this.outputGuardMs = change.releaseGuardMs;
     this.everyChannel = [...new Set([...this.everyChannel, ...next.allChannels, ...next.zoneChannels])];
     next.start(this.context);
     if (this.keyboard.wheelValue !== BEND_CENTRE) next.wheel(this.keyboard.wheelValue, this.keyboard.wheelRange, this.now, this.context);
     this.observe?.({ type: 'output', time: this.now, waiting: false, waited });
+  }
+
+  private outputFree(): boolean {
+    return this.book.size === 0 && this.now - this.lastVoiceEnd >= this.outputGuardMs;
   }
 
   /** True while new notes sound in 12-ET at the reference (the pass control, for comparison). */
@@ -195,7 +208,7 @@ export class Router {
   }
 
   private done(): TimedMessage[] {
-    if (this.pendingOutput && this.book.size === 0) this.swapOutput(true);
+    if (this.pendingOutput && this.outputFree()) this.swapOutput(true);
     const result = this.out;
     this.out = [];
     return result;

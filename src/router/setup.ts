@@ -93,6 +93,7 @@ function buildRouter(options: EngineOptions): Router {
     table,
     tuningAbout: options.tuningAbout,
     pieces: options.pieces,
+    releaseGuardMs: options.releaseGuardMs,
     speller: options.speller,
     output: createOutput(options, table),
     wheelRange: options.wheelRange,

@@ -287,7 +287,7 @@ describe('a piece that follows its score', () => {
 });
 
 describe('a piece that changes the output settings', () => {
-  it('takes over only when nothing sounds: held notes finish on the old set-up, then the new ranges and channels are sent', () => {
+  it('takes over only when nothing sounds and the release guard has passed: held notes finish on the old set-up, then the new ranges and channels are sent', () => {
     const dir = tempDir('diesis-output-');
     copyFileSync(join(root, 'presets/programmes/stage-keyboard.json'), join(dir, 'stage-keyboard.json'));
     const file = join(dir, 'concert.json');
@@ -316,7 +316,10 @@ describe('a piece that changes the output settings', () => {
     rig.at(20).on(76);
     expect(Math.abs(cents(rig.model.frequency(rig.voice(76)), 2 * pythagoreanE4(415)))).toBeLessThan(AT_48);
     expect(Math.abs(cents(rig.model.frequency(held), meantoneE4(415)))).toBeLessThan(AT_48);
-    rig.at(30).off(76).cc(64, 0); // nothing is held any more: the piece's output takes over
+    rig.at(30).off(76).cc(64, 0); // nothing is held any more; the release tails ring for the guard (400 ms)
+    rig.at(429).deliver(rig.router.tick(429));
+    expect(rig.model.zone?.members).toHaveLength(15);
+    rig.at(430).deliver(rig.router.tick(430)); // the guard has passed: the piece's output takes over
     expect(rig.events.some((e) => e.type === 'output' && !e.waiting && e.waited === true)).toBe(true);
     expect(rig.model.zone?.members).toEqual([1, 2, 3, 4]); // MPE zone of four members (RP-053)
     expect(rig.model.channels[1]!.bendRange).toBe(24);
