@@ -5,6 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { Concert, pieceSpeller } from '../../src/live/concert.js';
 import { positionFileOf, readConcertPlace, startingPiece, writeConcertPlace } from '../../src/live/concert-position.js';
 import { loadProgrammeFile } from '../../src/presets/programme-file.js';
+import { checkSetup } from '../../src/presets/setup-file.js';
 import { formatSpelledPitch } from '../../src/pitch/index.js';
 import { ControlMap } from '../../src/spelling/control-map.js';
 import { ControlledSpeller } from '../../src/spelling/controlled.js';
@@ -79,6 +80,24 @@ describe('a concert programme on the engine: switching pieces with notes held', 
     rig.at(300).off(69).off(57).cc(64, 0).after(2000);
     expect(rig.model.active()).toHaveLength(0);
     expect(rig.router.soundingCount).toBe(0);
+  });
+
+  it('a switch pedal bound to next-piece moves on once per press, with a note held through it', () => {
+    const programme = loadProgrammeFile(EVENING);
+    const first = programme.pieces[0]!;
+    const speller = new ControlledSpeller(pieceSpeller(first), [], first.key);
+    const { setup } = checkSetup(JSON.stringify({ controls: [{ cc: 67, action: 'next-piece' }] }), 'pedal.json');
+    const rig = new Rig({ tuning: first.tuning.tuning, reference: A440, speller, controls: new ControlMap(setup!.bindings, speller), pieces: new Concert(programme) });
+    rig.deliver(rig.router.goToPiece(0, 0).messages);
+    rig.at(0).on(64);
+    rig.at(10).cc(67, 127).cc(67, 100).cc(67, 0); // one press (the pedal's travel sends several values)
+    expect(pieceEvents(rig)).toEqual([0, 1]);
+    rig.at(20).on(76);
+    expect(Math.abs(cents(rig.model.frequency(rig.voice(76)), 2 * pythagoreanE4(415)))).toBeLessThan(AT_48);
+    expect(Math.abs(cents(rig.model.frequency(rig.voice(64)), meantoneE4(415)))).toBeLessThan(AT_48);
+    expect(rig.sent.some((m) => (m.data[0]! & 0xf0) === 0xb0 && m.data[1] === 67)).toBe(false); // the pedal is consumed
+    rig.at(30).off(64).off(76).after(1000);
+    expect(rig.model.active()).toHaveLength(0);
   });
 
   it('each visit to a piece starts its spelling afresh, with its own declared key', () => {
