@@ -161,6 +161,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     sampleKeys: sampleSet && new Set(sampleSet.manifest.files.map((f) => (f.channel - 1) * 128 + f.key)),
     controls: new ControlMap(setup?.bindings ?? [], speller),
     gather: cli.gather ?? json?.spelling?.gatherMs,
+    tuningAbout: { id: preset.id, name: preset.name },
   };
   if (sampleSet) checkSetPlays(sampleSet, { tuning: preset.tuning, tuningName: preset.name, reference: options.reference, mode: cli.mode ?? json?.output?.mode });
   const spellingLabel =

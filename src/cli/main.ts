@@ -7,6 +7,7 @@ import { registerPresetCommands } from './preset-commands.js';
 import { registerRender } from './render-command.js';
 import { registerSpell } from './spell-command.js';
 import { registerPlay } from './play-command.js';
+import { registerProgramme } from './programme-command.js';
 import { registerSamples } from './samples-command.js';
 import { registerSynthCheck } from './synth-check-command.js';
 
@@ -27,6 +28,7 @@ export function buildProgram(io: CommandIo): Command {
   registerRender(program, io);
   registerSpell(program, io);
   registerPlay(program, io);
+  registerProgramme(program, io);
   registerSamples(program, io);
   registerSynthCheck(program, io);
   for (const command of program.commands) command.exitOverride().configureOutput(program.configureOutput());

@@ -14,6 +14,7 @@ import { renderTable } from '../text/table.js';
 import { integerOption, numberOption } from './options.js';
 import { stagePageRequest, type StagePageCli } from '../page/stage-cli.js';
 import { addListenOptions, runListenCommand, type ListenCli } from './ports-learn.js';
+import { openConcert } from './concert-cli.js';
 
 interface PlayOptions extends EngineCliOptions, StagePageCli {
   in?: string[];
@@ -24,6 +25,9 @@ interface PlayOptions extends EngineCliOptions, StagePageCli {
   record?: string;
   ascii?: boolean;
   stopAfter?: number;
+  programme?: string;
+  resume?: boolean;
+  fromStart?: boolean;
 }
 
 export function registerPlay(program: Command, io: CommandIo): void {
@@ -39,14 +43,22 @@ export function registerPlay(program: Command, io: CommandIo): void {
     .option('--ascii', 'write # and b instead of ♯ and ♭')
     .option('--stop-after <seconds>', 'stop by itself after this long (for scripted runs)', numberOption('--stop-after', 0, 86_400))
     .option('--page [port]', 'serve the stage page for a tablet on the music stand (default port 8421; this computer only)', integerOption('--page', 0, 65_535))
-    .option('--page-host <address>', 'open the stage page to the network on this address (0.0.0.0: every one); a token is then required');
+    .option('--page-host <address>', 'open the stage page to the network on this address (0.0.0.0: every one); a token is then required')
+    .option('--programme <concert.json>', 'play a concert programme: its base setup, piece after piece (next-piece and previous-piece controls, or the stage page)')
+    .option('--resume', 'with --programme: start at the piece where the concert was when diesis last stopped')
+    .option('--from-start', 'with --programme: start at the first piece, wherever the concert was');
   addEngineOptions(command).action(async (cli: PlayOptions) => {
-    const resolved = resolveEngineCli(cli);
+    if (cli.programme === undefined && (cli.resume || cli.fromStart)) throw new UserError(`${cli.resume ? '--resume' : '--from-start'} belongs with --programme`, 2);
+    const concert = cli.programme === undefined ? undefined : await openConcert(cli, io);
+    const resolved = resolveEngineCli(concert ? { ...cli, setup: concert.programme.setupFile } : cli);
+    if (concert) concert.useBase(resolved.options);
     const inputs = cli.in ?? [];
     if (inputs.length === 0 || !cli.out) throw new UserError('play needs --in PORT and --out PORT (run "diesis ports" to list them)', 2);
-    const inputFiles = engineInputFiles(resolved);
+    const inputFiles = [...engineInputFiles(resolved), ...(concert ? [concert.programme.file] : [])];
     checkSessionOutputs(cli.log, cli.record, inputFiles);
-    const { engine, title } = sessionTitle(resolved);
+    const titled = sessionTitle(resolved);
+    const engine = concert ? { ...titled.engine, pieces: concert.pieces } : titled.engine;
+    const title = concert ? `diesis · ${concert.programme.name ?? basename(concert.programme.file)} · ${concert.programme.pieces.length} pieces` : titled.title;
     const code = await runUntilStopped(
       {
         inputs,
@@ -62,6 +74,8 @@ export function registerPlay(program: Command, io: CommandIo): void {
         inputFiles,
         ascii: cli.ascii,
         page: stagePageRequest(cli, { pieceTitle: cli.setup ? basename(cli.setup, extname(cli.setup)) : 'diesis', tuningId: resolved.preset.id, tuningName: resolved.preset.name }),
+        startPiece: concert?.start,
+        onEvent: concert?.onEvent,
       },
       io,
       cli.stopAfter,

@@ -2,6 +2,8 @@ import type { Command } from 'commander';
 import { relative } from 'node:path';
 import { formatProblem, parseJsonText } from '../presets/problems.js';
 import { checkSetup } from '../presets/setup-file.js';
+import { isProgrammeValue } from '../presets/programme-file.js';
+import { reportProgrammeCheck } from './programme-command.js';
 import { checkTuningPreset, loadBuiltInTuningPresets, PRESETS_DIR } from '../presets/tuning-presets.js';
 import { UserError } from '../util/errors.js';
 import { readTextFile } from '../util/files.js';
@@ -40,11 +42,15 @@ export function registerPresetCommands(program: Command, io: CommandIo): void {
 
   program
     .command('check')
-    .description('validate a tuning or setup file exactly as play, render and spell load it, and print every problem in it')
-    .argument('<file>', 'a tuning or setup .json file (a tuning has a "kind")')
+    .description('validate a tuning, setup or concert programme exactly as play, render and spell load it, and print every problem in it')
+    .argument('<file>', 'a tuning, setup or programme .json file (a tuning has a "kind", a programme "pieces")')
     .action((file: string) => {
       const text = readTextFile(file);
       const value = parseJsonText(text, file);
+      if (isProgrammeValue(value)) {
+        reportProgrammeCheck(file, io);
+        return;
+      }
       const isTuning = typeof value === 'object' && value !== null && 'kind' in value;
       const check = isTuning ? checkTuningPreset(text, file) : checkSetup(text, file);
       for (const problem of check.problems) io.stderr.write(formatProblem(file, problem, check.source) + '\n');

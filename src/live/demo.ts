@@ -10,6 +10,10 @@ import { parseReference } from '../tuning/index.js';
 import type { CommandIo } from '../util/io.js';
 import { virtualInput, virtualOutput } from '../io/virtual-ports.js';
 import { runUntilStopped } from './run.js';
+import { join } from 'node:path';
+import { loadProgrammeFile } from '../presets/programme-file.js';
+import { packageRoot } from '../util/package-root.js';
+import { Concert } from './concert.js';
 import { stagePageRequest, type StagePageCli } from '../page/stage-cli.js';
 
 /** One step of the demo: at `beat`, the keyboard plays `chord` (held `hold` beats), or the pedal moves. */
@@ -70,19 +74,24 @@ export async function runDemo(io: CommandIo, demo: DemoOptions = {}): Promise<nu
   const decided: number[] = [];
   io.stdout.write('diesis demo: quarter-comma meantone at A4 = 415 Hz, spelled in D minor, into an MPE synth (virtual ports, no hardware).\n');
   io.stdout.write('The pedal (CC 80) flips black keys for the F minor and D♭ major bars; the last chord is held by the sustain pedal.\n');
+  const page = stagePageRequest(demo.page ?? {}, { pieceTitle: 'diesis demo', tuningId: tuning.id, tuningName: tuning.name }, true);
+  // With the page, the example programme's pieces (the first is this one): its ◀ ▶ change the tuning as the piece plays.
+  const programme = page ? loadProgrammeFile(join(packageRoot(), 'presets/programmes/evening.json')) : undefined;
+  if (programme) io.stdout.write(`The stage page's ◀ ▶ step through the example programme presets/programmes/evening.json (${programme.pieces.length} pieces, each in its own tuning).\n`);
   io.stdout.write(demo.loop ? 'The piece plays again and again: q or Ctrl-C stops it.\n\n' : '\n');
   const done = runUntilStopped(
     {
       inputs: [keyboard.name, pedals.name],
       output: 'diesis demo synth',
-      engine: { tuning: tuning.tuning, reference, controls },
+      engine: { tuning: tuning.tuning, reference, controls, pieces: programme && new Concert(programme) },
+      startPiece: programme ? 0 : undefined,
       onEvent: (e: RouterEvent) => e.type === 'note' && decided.push(e.hz),
       speller,
       strategy: 'key',
       title: 'diesis demo',
       lines: true,
       virtualOnly: true,
-      page: stagePageRequest(demo.page ?? {}, { pieceTitle: 'diesis demo', tuningId: tuning.id, tuningName: tuning.name }, true),
+      page,
     },
     io,
     demo.loop ? undefined : PIECE_MS / 1000,

@@ -1,4 +1,5 @@
 import { formatPitchClass, formatRange, formatSpelledPitch, type NameStyle, type SpelledPitch } from '../pitch/index.js';
+import { formatReference } from '../tuning/index.js';
 import type { RouterEvent } from '../router/events.js';
 import type { NoteId } from '../midi/note-id.js';
 import { channelOf, keyOfNote, sourceOf } from '../midi/note-id.js';
@@ -46,6 +47,10 @@ export class LiveView {
   private sustain = false;
   private sostenuto = false;
   private passing = false;
+  /** The piece of a concert programme and the tuning in force, once either has changed. */
+  private pieceNow: string | undefined;
+  private tuningNow: string | undefined;
+  private strategyNow: string | undefined;
 
   constructor(
     private readonly sources: ViewSources,
@@ -78,6 +83,16 @@ export class LiveView {
       case 'pass':
         this.passing = e.on;
         break;
+      case 'piece':
+        this.pieceNow = this.pieceWords(e);
+        this.strategyNow = e.strategy;
+        break;
+      case 'tuning':
+        this.tuningNow = this.tuningWords(e);
+        break;
+      case 'output':
+        if (e.waiting) this.remember("the piece's output settings wait until nothing sounds");
+        break;
       case 'panic':
         this.sounding.clear();
         this.sustain = false;
@@ -96,8 +111,19 @@ export class LiveView {
       const m = matchOf(this.sources.speller, sourceOf(e.id), channelOf(e.id), keyOfNote(e.id));
       return `${this.note(e.pitch).padEnd(5)} key ${String(keyOfNote(e.id)).padStart(3)}  ${signed(e.cents, 2, this.names.accidentals === 'ascii').padStart(8)} c  ${e.hz.toFixed(2).padStart(8)} Hz  → ch ${e.placement.channel + 1} key ${e.placement.key}${instead}${m ? `  bar ${m.bar ?? '-'} ${m.match}` : ''}`;
     }
+    if (e.type === 'piece') return this.style.bold(`== ${this.pieceWords(e)}`);
+    if (e.type === 'tuning') return this.style.bold(`== ${this.tuningWords(e)}`);
+    if (e.type === 'output') return this.style.bold(e.waiting ? "== the piece's output settings wait until nothing sounds" : "== the piece's output settings are in force");
     const warning = this.warningOf(e);
     return warning && this.style.yellow(`! ${warning}`);
+  }
+
+  private pieceWords(e: Extract<RouterEvent, { type: 'piece' }>): string {
+    return `piece ${e.index + 1} of ${e.count}: ${e.title}`;
+  }
+
+  private tuningWords(e: Extract<RouterEvent, { type: 'tuning' }>): string {
+    return `new notes in ${e.name} (${e.tuningId}), ${formatReference(e.reference, this.names)}`;
   }
 
   private warningOf(e: RouterEvent): string | undefined {
@@ -128,7 +154,8 @@ export class LiveView {
 
   /** The whole screen, for a terminal. */
   frame(): string {
-    const { speller, strategy, title, tally } = this.sources;
+    const { speller, title, tally } = this.sources;
+    const strategy = this.strategyNow ?? this.sources.strategy;
     const s = this.style;
     const o = speller.overrides;
     const on = (flag: boolean, label: string): string => (flag ? s.bold(s.green(`[${label}]`)) : s.dim(` ${label} `));
@@ -136,6 +163,8 @@ export class LiveView {
     const ports = this.sources.ports();
     const lines: string[] = [];
     lines.push(s.bold(title));
+    if (this.pieceNow) lines.push(s.bold(s.green(this.pieceNow)));
+    if (this.tuningNow) lines.push(this.tuningNow);
     const window = formatRange(speller.currentWindow(), this.names);
     const key = speller.currentKey();
     const inKey = key ? `  key ${s.bold(`${formatPitchClass(key.tonic, this.names)} ${key.mode}`)}` : '';

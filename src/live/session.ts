@@ -1,5 +1,6 @@
 import { createWriteStream, type WriteStream } from 'node:fs';
 import { formatSpelledPitch } from '../pitch/index.js';
+import { formatReference } from '../tuning/index.js';
 import type { RouterEvent } from '../router/router.js';
 import { createEngine, type EngineOptionsInput } from '../router/setup.js';
 import { channelOf, keyOfNote, sourceOf } from '../midi/note-id.js';
@@ -13,6 +14,7 @@ import { Bridge, type BridgeNotice } from './bridge.js';
 import { LiveView } from './display.js';
 import { Recorder } from './recorder.js';
 import { openStagePage, type StageLink, type StagePageRequest } from '../page/stage-link.js';
+import type { StageControlResult } from '../page/stage-state.js';
 
 export interface SessionOptions {
   readonly inputs: readonly string[];
@@ -38,6 +40,8 @@ export interface SessionOptions {
   readonly page?: StagePageRequest | undefined;
   /** Ends the wait for missing ports (`--stop-after` counts from the start, waiting included). */
   readonly stopWaiting?: AbortSignal | undefined;
+  /** A concert programme (its pieces are in `engine.pieces`): the piece to begin with, 0-based. */
+  readonly startPiece?: number | undefined;
 }
 
 /** Thrown by `startSession` when `stopWaiting` fires while it still waits for a port. */
@@ -57,6 +61,7 @@ export interface Session {
 
 /** One JSON line per event: spellings as names, a note's identity as source, channel (1–16) and key. */
 export function logLine(e: RouterEvent): string {
+  if (e.type === 'tuning') return JSON.stringify({ type: e.type, time: e.time, tuning: e.tuningId, name: e.name, reference: formatReference(e.reference) }) + '\n';
   const fields: Record<string, unknown> = { ...e };
   if ('id' in e) {
     delete fields.id;
@@ -102,10 +107,12 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
   const print = (line: string | undefined): void => {
     if (line !== undefined && lines) io.stdout.write(line + '\n');
   };
+  let countPieces = (): void => undefined;
   const { router, tally } = createEngine({
     ...options.engine,
     speller: options.speller,
     observer: (e) => {
+      if (e.type === 'piece') countPieces();
       options.onEvent?.(e);
       page?.event(e);
       log?.write(logLine(e));
@@ -137,7 +144,17 @@ export async function startSession(options: SessionOptions, io: CommandIo): Prom
   }
   const redraw = screen ? setInterval(() => io.stdout.write(`\u001b[H\u001b[2J${view?.frame() ?? ''}\n`), 100) : undefined;
   const opened = bridge;
-  page?.attach({ router, speller: options.speller, tuning: options.engine.tuning, reference: options.engine.reference, strategy: options.strategy, send: (m) => opened.send(m), clock: () => performance.now(), synthConnected: () => opened.outputConnected });
+  if (options.startPiece !== undefined) opened.send(router.goToPiece(performance.now(), options.startPiece).messages);
+  let pieceChanges = 0;
+  const piece = options.engine.pieces
+    ? (step: 1 | -1): StageControlResult => {
+        const before = pieceChanges;
+        opened.send(router.act(performance.now(), { action: { name: step > 0 ? 'next-piece' : 'previous-piece' }, on: true }));
+        return pieceChanges > before ? { ok: true } : { ok: false, reason: step > 0 ? 'this is the last piece of the programme' : 'this is the first piece of the programme' };
+      }
+    : undefined;
+  countPieces = () => pieceChanges++;
+  page?.attach({ router, speller: options.speller, tuning: options.engine.tuning, reference: options.engine.reference, strategy: options.strategy, send: (m) => opened.send(m), clock: () => performance.now(), synthConnected: () => opened.outputConnected, piece });
   let stopped = false;
   return {
     bridge: opened,

@@ -11,6 +11,7 @@ import type { BridgeNotice } from '../io/port-notice.js';
 import { PAGE_UPDATES_PER_SECOND, PageServer, isLoopback } from './page-server.js';
 import { applyStageControl } from './stage-controls.js';
 import { lonePiece, StageTracker, stageStateOf, type StageSources } from './stage-view.js';
+import type { StageControlResult, StagePiece } from './stage-state.js';
 
 /** What `play --page` and the demo ask for. */
 export interface StagePageRequest {
@@ -34,6 +35,8 @@ export interface StageSessionParts {
   readonly send: (messages: readonly TimedMessage[]) => void;
   readonly clock: () => number;
   readonly synthConnected: () => boolean;
+  /** Moves through a concert programme (the next-piece and previous-piece actions); absent without one. */
+  readonly piece?: ((step: 1 | -1) => StageControlResult) | undefined;
 }
 
 /** The session's side of the page: hears events and notices, builds and publishes the state while a page is open. */
@@ -92,6 +95,21 @@ export async function openStagePage(request: StagePageRequest): Promise<StageLin
   let tracker: StageTracker | undefined;
   let timer: NodeJS.Timeout | undefined;
   const pending: RouterEvent[] = [];
+  // A programme's piece and a tuning changed while playing: what the page shows from then on.
+  let piece: StagePiece = lonePiece(request.pieceTitle);
+  let tuning: Extract<RouterEvent, { type: 'tuning' }> | undefined;
+  let strategy: string | undefined;
+  const picture = (t: Tuning, reference: Reference, name: string): string =>
+    chartSvg(buildChart({ tuning: t, reference, range: parseFifthsRange('Gb..A#'), octave: 4, wolfLimits: DEFAULT_WOLF_LIMITS }), { title: name });
+  let drawn: { readonly tuning: Tuning; readonly reference: Reference; readonly svg: string } | undefined;
+  /** The sources as they are now: the piece and tuning in force replace those the session began with. */
+  const current = (base: StageSources): StageSources => {
+    const withPiece = { ...base, piece, strategy: strategy ?? base.strategy };
+    if (!tuning) return withPiece;
+    const t = tuning;
+    if (!drawn || drawn.tuning !== t.tuning || drawn.reference !== t.reference) drawn = { tuning: t.tuning, reference: t.reference, svg: picture(t.tuning, t.reference, t.name) };
+    return { ...withPiece, tuning: t.tuning, reference: t.reference, tuningId: t.tuningId, tuningName: t.name, picture: drawn.svg };
+  };
   return {
     server,
     banner,
@@ -99,7 +117,6 @@ export async function openStagePage(request: StagePageRequest): Promise<StageLin
       const router = parts.router;
       tracker = new StageTracker();
       for (const e of pending.splice(0)) tracker.event(e);
-      const chart = buildChart({ tuning: parts.tuning, reference: parts.reference, range: parseFifthsRange('Gb..A#'), octave: 4, wolfLimits: DEFAULT_WOLF_LIMITS });
       sources = {
         router,
         speller: parts.speller,
@@ -109,17 +126,20 @@ export async function openStagePage(request: StagePageRequest): Promise<StageLin
         tuningName: request.tuningName,
         strategy: parts.strategy,
         piece: lonePiece(request.pieceTitle),
-        picture: chartSvg(chart, { title: request.tuningName }),
+        picture: picture(parts.tuning, parts.reference, request.tuningName),
         synthConnected: parts.synthConnected,
       };
-      server.onControl((control) => applyStageControl(control, { speller: parts.speller, router, send: parts.send, clock: parts.clock }));
+      server.onControl((control) => applyStageControl(control, { speller: parts.speller, router, send: parts.send, clock: parts.clock, piece: parts.piece }));
       const ready = sources;
       const live = tracker;
       timer = setInterval(() => {
-        if (server.connections > 0) server.publish(stageStateOf(ready, live, parts.clock()));
+        if (server.connections > 0) server.publish(stageStateOf(current(ready), live, parts.clock()));
       }, Math.ceil(1000 / PAGE_UPDATES_PER_SECOND));
     },
     event(e) {
+      if (e.type === 'piece') strategy = e.strategy;
+      if (e.type === 'piece') piece = { title: e.title, index: e.index, count: e.count, canPrevious: e.index > 0, canNext: e.index < e.count - 1 };
+      if (e.type === 'tuning') tuning = e;
       if (tracker) tracker.event(e);
       else pending.push(e);
     },
@@ -129,7 +149,7 @@ export async function openStagePage(request: StagePageRequest): Promise<StageLin
     async stop() {
       if (timer) clearInterval(timer);
       // The page sees the last state (every note ended) before the server goes.
-      if (sources && tracker && server.connections > 0) server.publish(stageStateOf(sources, tracker, performance.now()));
+      if (sources && tracker && server.connections > 0) server.publish(stageStateOf(current(sources), tracker, performance.now()));
       await server.stop();
     },
   };

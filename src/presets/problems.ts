@@ -23,7 +23,7 @@ function musicianMessage(issue: z.core.$ZodIssue): string {
   if (!/^(Too small|Too big|Invalid|Unrecognized)/u.test(issue.message)) return issue.message; // the schema's own words
   switch (issue.code) {
     case 'unrecognized_keys':
-      return `unknown setting${issue.keys.length > 1 ? 's' : ''} ${issue.keys.map((k) => `"${k}"`).join(', ')} (check the spelling; "diesis check" lists what a setup may hold in the README)`;
+      return `unknown setting${issue.keys.length > 1 ? 's' : ''} ${issue.keys.map((k) => `"${k}"`).join(', ')} (check its spelling against the README's example)`;
     case 'invalid_value':
       return `must be one of ${issue.values.map((v) => JSON.stringify(v)).join(', ')}`;
     case 'invalid_type':

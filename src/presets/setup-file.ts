@@ -7,12 +7,13 @@ import type { SplitKey } from '../spelling/controlled.js';
 import { parseKey, type DeclaredKey } from '../spelling/keys.js';
 import { STRATEGY_ENTRIES, type Strategy } from '../spelling/strategy.js';
 import { parseChannels } from '../text/channels.js';
-import { parseReference, type Reference } from '../tuning/index.js';
+import { isAdaptive, parseReference, type Reference } from '../tuning/index.js';
 import { readTextFile } from '../util/files.js';
 import { parseJsonSource, type JsonSource } from './json-source.js';
 import { collecting, throwProblems, zodProblems, type Problem } from './problems.js';
 import { controlSchema, setupSchema, splitKeySchema, type ControlJson, type SetupJson, type SplitKeyJson } from './setup-schema.js';
 import { loadTuningPreset, type TuningPreset } from './tuning-presets.js';
+import type { TuningChange } from '../router/tuning-in-force.js';
 import { readScoreFile } from './score-file.js';
 import type { Score } from '../score/score.js';
 
@@ -47,21 +48,59 @@ export function setupPath(setupFile: string, path: string): string {
   return isAbsolute(path) ? path : resolve(dirname(setupFile), path);
 }
 
+/** Whether an output mode can give every note its own pitch (adaptive tunings need it). */
+export function adaptiveFits(mode: OutputMode): boolean {
+  return mode !== 'mts-octave' && mode !== 'samples';
+}
+
+export function adaptiveRefusal(id: string, mode: OutputMode): string {
+  return `${id} gives every note its own pitch: output mode "${mode}" tunes key classes or fixed samples, so held notes would move (use bend or mts-note)`;
+}
+
 /** A tuning named in a setup: a built-in id, or a file beside the setup. */
 function setupTuning(setupFile: string, idOrPath: string): TuningPreset {
   const looksLikePath = idOrPath.includes('/') || idOrPath.includes('\\') || idOrPath.endsWith('.json');
   return loadTuningPreset(looksLikePath ? setupPath(setupFile, idOrPath) : idOrPath);
 }
 
-function actionOf(name: ActionName, keyText: string | undefined, bar: string | number | undefined, path: string, problems: Problem[]): Action | undefined {
-  if (actionEntry(name).needsBar) {
-    if (bar === undefined) {
+/** What a control names beside its action. */
+interface ActionWords {
+  readonly key?: string | undefined;
+  readonly tuning?: string | undefined;
+  readonly reference?: string | undefined;
+  readonly bar?: string | number | undefined;
+}
+
+/** A set-tuning control's tuning: loaded and checked now, so the pedal cannot fail on stage. */
+export function tuningChangeOf(setupFile: string, tuningText: string, referenceText: string | undefined, path: string, problems: Problem[]): TuningChange | undefined {
+  const preset = collecting(problems, `${path}.tuning`, () => setupTuning(setupFile, tuningText));
+  const reference = referenceText === undefined ? undefined : collecting(problems, `${path}.reference`, () => parseReference(referenceText, 'reference'));
+  return preset && { id: preset.id, name: preset.name, tuning: preset.tuning, reference: reference ?? preset.reference };
+}
+
+function actionOf(name: ActionName, words: ActionWords, path: string, problems: Problem[], file: string): Action | undefined {
+  const entry = actionEntry(name);
+  for (const field of ['key', 'tuning', 'reference', 'bar'] as const) {
+    const wanted = field === 'key' ? entry.needsKey : field === 'bar' ? entry.needsBar : entry.needsTuning;
+    if (words[field] !== undefined && !wanted) problems.push({ path: `${path}.${field}`, warning: true, message: `has no effect with "${name}"` });
+  }
+  if (entry.needsBar) {
+    if (words.bar === undefined) {
       problems.push({ path, message: `"${name}" needs the "bar" it goes to, such as 12` });
       return undefined;
     }
-    return { name, bar: String(bar) };
+    return { name, bar: String(words.bar) };
   }
-  if (!actionEntry(name).needsKey) return { name };
+  if (entry.needsTuning) {
+    if (words.tuning === undefined) {
+      problems.push({ path, message: `"${name}" needs a "tuning", such as "pythagorean"` });
+      return undefined;
+    }
+    const tuning = tuningChangeOf(file, words.tuning, words.reference, path, problems);
+    return tuning && { name, tuning };
+  }
+  if (!entry.needsKey) return { name };
+  const keyText = words.key;
   if (keyText === undefined) {
     problems.push({ path, message: `"${name}" needs a "key", such as "D minor"` });
     return undefined;
@@ -75,7 +114,7 @@ interface PlacedBinding {
   readonly path: string;
 }
 
-function bindingsOf(controls: readonly ControlJson[], problems: Problem[], at: (i: number) => string): PlacedBinding[] {
+function bindingsOf(controls: readonly ControlJson[], problems: Problem[], at: (i: number) => string, file: string): PlacedBinding[] {
   const bindings: PlacedBinding[] = [];
   controls.forEach((c: ControlJson | undefined, i) => {
     if (!c) return; // invalid on its own: the schema's problem already says so
@@ -84,13 +123,13 @@ function bindingsOf(controls: readonly ControlJson[], problems: Problem[], at: (
     const latch = c.latch ?? false;
     if (c.zones && c.cc !== undefined) {
       c.zones.forEach((z, j) => {
-        const action = actionOf(z.action, z.key, z.bar, `${path}.zones[${j}]`, problems);
+        const action = actionOf(z.action, z, `${path}.zones[${j}]`, problems, file);
         if (action) bindings.push({ binding: { trigger: { kind: 'zone', controller: c.cc!, channel, from: z.from, to: z.to }, action, latch: z.latch ?? false }, path: `${path}.zones[${j}]` });
       });
       return;
     }
     if (!c.action) return;
-    const action = actionOf(c.action, c.key, c.bar, path, problems);
+    const action = actionOf(c.action, c, path, problems, file);
     let trigger: Trigger | undefined;
     if (c.cc !== undefined) trigger = { kind: 'cc', controller: c.cc, channel, threshold: c.threshold ?? 64 };
     else if (c.note !== undefined) trigger = { kind: 'note', key: c.note, channel, source: c.source };
@@ -228,13 +267,19 @@ export function checkSetup(text: string, file: string): SetupCheck {
   return { setup: { file, json, ...values }, problems, source };
 }
 
-function semanticChecks(json: SetupJson, file: string, problems: Problem[]): Omit<SetupFile, 'file' | 'json'> {
+/** Checks and loads every value of a (schema-valid) setup, paths as in a setup file; `file` is where relative paths start. */
+export function semanticChecks(json: SetupJson, file: string, problems: Problem[]): Omit<SetupFile, 'file' | 'json'> {
   const tuning = json.tuning === undefined ? undefined : collecting(problems, '$.tuning', () => setupTuning(file, json.tuning!));
   const reference = json.reference === undefined ? undefined : collecting(problems, '$.reference', () => parseReference(json.reference!, 'reference'));
   const channels = outputProblems(json, problems);
   const { window, key } = spellingProblems(json, problems);
-  const placed = bindingsOf(json.controls ?? [], problems, (i) => `$.controls[${i}]`);
+  const placed = bindingsOf(json.controls ?? [], problems, (i) => `$.controls[${i}]`, file);
   bindingConflicts(placed, problems);
+  const mode: OutputMode = json.output?.mode ?? 'bend';
+  for (const { binding, path } of placed) {
+    const change = binding.action.tuning;
+    if (change && isAdaptive(change.tuning) && !adaptiveFits(mode)) problems.push({ path: `${path}.tuning`, message: adaptiveRefusal(change.id, mode) });
+  }
   const splits = splitsOf(json, problems);
   const score = json.score === undefined ? undefined : collecting(problems, '$.score', () => readScoreFile(setupPath(file, json.score!)));
   for (const { binding, path } of placed) {

@@ -10,7 +10,16 @@ const midiValue = z.number().int().min(0).max(127);
 const action = z.enum(ACTION_NAMES);
 
 const bar = z.union([z.string(), z.number().int().min(0)]);
-const zone = z.strictObject({ from: midiValue, to: midiValue, action, key: z.string().optional(), bar: bar.optional(), latch: z.boolean().optional() });
+const zone = z.strictObject({
+  from: midiValue,
+  to: midiValue,
+  action,
+  key: z.string().optional(),
+  bar: bar.optional(),
+  tuning: z.string().optional(),
+  reference: z.string().optional(),
+  latch: z.boolean().optional(),
+});
 
 /** One control: what triggers it (cc, zones, note or program) and what it does. */
 export const controlSchema = z
@@ -25,6 +34,9 @@ export const controlSchema = z
     action: action.optional(),
     key: z.string().optional(),
     bar: bar.optional(),
+    /** For set-tuning: the tuning (a built-in id or a file beside the setup) and, optionally, its reference. */
+    tuning: z.string().optional(),
+    reference: z.string().optional(),
     latch: z.boolean().optional(),
   })
   .refine((c) => [c.cc, c.note, c.program].filter((x) => x !== undefined).length === 1, { error: 'give exactly one of "cc", "note" or "program"' })

@@ -1,4 +1,5 @@
 import type { SpelledPitch } from '../pitch/index.js';
+import type { Reference, Tuning } from '../tuning/index.js';
 import type { NoteId } from '../midi/note-id.js';
 import type { Placement } from './output.js';
 import type { EndCause } from './voice-book.js';
@@ -33,7 +34,13 @@ export type RouterEvent =
   | { readonly type: 'pedal'; readonly time: number; readonly pedal: 'sustain' | 'sostenuto'; readonly down: boolean }
   | { readonly type: 'pass'; readonly time: number; readonly on: boolean }
   | { readonly type: 'malformed'; readonly time: number; readonly source: number; readonly bytes: number }
-  | { readonly type: 'panic'; readonly time: number; readonly reason: string };
+  | { readonly type: 'panic'; readonly time: number; readonly reason: string }
+  /** New notes take this tuning and reference from now on (notes sounding keep theirs). */
+  | { readonly type: 'tuning'; readonly time: number; readonly tuningId: string; readonly name: string; readonly tuning: Tuning; readonly reference: Reference }
+  /** A piece's output settings: `waiting` while notes still sound, then taken over (`waited`: after those notes ended). */
+  | { readonly type: 'output'; readonly time: number; readonly waiting: boolean; readonly waited?: boolean | undefined }
+  /** A concert programme moved to a piece (0-based `index` of `count`). */
+  | { readonly type: 'piece'; readonly time: number; readonly index: number; readonly count: number; readonly title: string; readonly strategy: string };
 
 export type RouterEventType = RouterEvent['type'];
 export type NoteEvent = Extract<RouterEvent, { type: 'note' }>;

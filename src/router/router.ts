@@ -4,8 +4,9 @@ import { MidiStreamParser } from '../midi/parser.js';
 import { BEND_CENTRE } from '../midi/pitch-bend.js';
 import { keyOf, spellKey, type PitchClass, type SpelledPitch } from '../pitch/index.js';
 import type { ControlMap, EngineActions, Firing } from '../spelling/control-map.js';
+import { ControlledSpeller } from '../spelling/controlled.js';
 import type { NoteContext, Speller } from '../spelling/speller.js';
-import type { AdaptedTunedNote, AdaptivePitches } from './adaptive-pitches.js';
+import type { AdaptedTunedNote } from './adaptive-pitches.js';
 import { ChordGatherer, type GatherSetting } from './chord-gatherer.js';
 import type { RouterEvent } from './events.js';
 import { isParameterController, KeyboardState } from './keyboard-state.js';
@@ -13,7 +14,8 @@ import { channelOf, keyOfNote, noteId, sourceOf, type NoteId } from '../midi/not
 import type { OutputContext, OutputStrategy } from './output.js';
 import type { PitchTable } from './pitch-table.js';
 import { planRespelling } from './respell.js';
-import { TableChoice } from './table-choice.js';
+import type { PieceChange, PieceOutputChange, PieceSource } from './pieces.js';
+import { TuningInForce, type TuningChange } from './tuning-in-force.js';
 import { VoiceBook } from './voice-book.js';
 
 export type { RouterEvent } from './events.js';
@@ -30,8 +32,12 @@ export interface RouterSetup {
   /** The player's pedals, key switches and program changes bound to actions. */
   readonly controls?: ControlMap | undefined;
   readonly gather?: GatherSetting | undefined;
-  /** For adaptive tunings: pitches that follow the harmony instead of the table. */
-  readonly adaptive?: AdaptivePitches | undefined;
+  /** The tuning's id and name, for the events a tuning change sends. */
+  readonly tuningAbout?: { readonly id: string; readonly name: string } | undefined;
+  /** A concert programme: where next-piece and previous-piece lead. */
+  readonly pieces?: PieceSource | undefined;
+  /** The output's release guard: a piece's new output takes over only this long after the last note ended. */
+  readonly releaseGuardMs?: number | undefined;
   /** Hears every decision; displays, logs, reports and counters are folds over these events. */
   readonly observer?: ((event: RouterEvent) => void) | undefined;
 }
@@ -55,8 +61,15 @@ export class Router {
   private readonly gatherer: ChordGatherer;
   private readonly context: OutputContext;
   private readonly actions: EngineActions;
-  private readonly everyChannel: readonly number[];
-  private readonly tables: TableChoice;
+  private everyChannel: readonly number[];
+  /** The output in force: a piece's output settings replace it once nothing sounds. */
+  private output: OutputStrategy;
+  private pendingOutput: PieceOutputChange | undefined;
+  /** The release guard of the output in force, and when the last voice ended: a new output waits for both. */
+  private outputGuardMs: number;
+  private lastVoiceEnd = Number.NEGATIVE_INFINITY;
+  /** The tuning and reference new notes take (a set-tuning control or a new piece changes them). */
+  private readonly tuning: TuningInForce;
   private readonly observe: ((event: RouterEvent) => void) | undefined;
   private out: TimedMessage[] = [];
   private now = 0;
@@ -73,16 +86,18 @@ export class Router {
 
   constructor(private readonly setup: RouterSetup) {
     const observe = (this.observe = setup.observer);
-    const output = setup.output;
+    const output = (this.output = setup.output);
+    this.outputGuardMs = setup.releaseGuardMs ?? 0;
     this.keyboard = new KeyboardState(setup.wheelRange);
-    this.tables = new TableChoice(setup.table);
+    const tuning = (this.tuning = new TuningInForce(setup.table, setup.tuningAbout));
     this.gatherer = new ChordGatherer(setup.gather ?? 0);
     this.everyChannel = [...new Set([...output.allChannels, ...output.zoneChannels])];
     const book = (this.book = new VoiceBook({
       noteOff: (voice, velocity) => this.emit(noteOff(voice.placement.channel, voice.placement.key, velocity)),
       ended: (voice, cause) => {
-        if (cause !== 'stolen' && cause !== 'panic') output.voiceEnded(voice.placement, this.now);
-        setup.adaptive?.ended(this.now, voice.id);
+        if (cause !== 'stolen' && cause !== 'panic') this.output.voiceEnded(voice.placement, this.now);
+        this.lastVoiceEnd = this.now;
+        tuning.adaptive?.ended(this.now, voice.id);
         observe?.({ type: 'voice-ended', time: this.now, id: voice.id, placement: voice.placement, cause });
       },
     }));
@@ -106,7 +121,68 @@ export class Router {
         observe?.({ type: 'pass', time: this.now, on: this.passThrough });
       },
       panic: () => this.doPanic('panic control', this.everyChannel),
+      setTuning: (change) => this.changeTuning(change),
+      stepPiece: (step) => {
+        const change = this.setup.pieces?.step(step);
+        if (change) this.changePiece(change);
+      },
     };
+  }
+
+  /** The tuning new notes take now, its reference, and its id and name. */
+  get tuningInForce(): Pick<TuningInForce, 'tuning' | 'reference' | 'id' | 'name'> {
+    return this.tuning;
+  }
+
+  /** Moves to a piece of the programme (the first piece, a resumed concert); false if there is none there. */
+  goToPiece(time: number, index: number): { messages: TimedMessage[]; moved: boolean } {
+    this.begin(time);
+    this.flushChord();
+    const change = this.setup.pieces?.at(index);
+    if (change) this.changePiece(change);
+    return { messages: this.done(), moved: change !== undefined };
+  }
+
+  /** New notes take `change`; notes sounding finish in the tuning they began in. */
+  private changeTuning(change: TuningChange): void {
+    this.tuning.change(change);
+    this.observe?.({ type: 'tuning', time: this.now, tuningId: change.id, name: change.name, tuning: this.tuning.tuning, reference: this.tuning.reference });
+  }
+
+  /** A new piece: its tuning, its spelling (a fresh strategy, its score from the beginning) and its key. */
+  private changePiece(change: PieceChange): void {
+    const speller = this.setup.speller;
+    if (speller instanceof ControlledSpeller) speller.replaceBase(change.spelling.base, change.spelling.key);
+    this.changeTuning(change.tuning);
+    if (change.output) {
+      this.pendingOutput = change.output;
+      if (this.outputFree()) this.swapOutput(false);
+      else this.observe?.({ type: 'output', time: this.now, waiting: true });
+    }
+    this.observe?.({ type: 'piece', time: this.now, index: change.index, count: change.count, title: change.title, strategy: change.spelling.strategy });
+  }
+
+  /**
+   * A piece's output settings (bend range, channels, release guard…) take over only when nothing
+   * sounds and the release guard has passed since the last note ended: changed under a note or its
+   * release tail they would move it. Until then new notes go to the
+   * output in force, in the new tuning. The new output's set-up messages go out as it takes over;
+   * panic still covers the channels of every output used.
+   */
+  private swapOutput(waited: boolean): void {
+    const change = this.pendingOutput;
+    if (!change) return;
+    this.pendingOutput = undefined;
+    const next = (this.output = change.strategy);
+    this.outputGuardMs = change.releaseGuardMs;
+    this.everyChannel = [...new Set([...this.everyChannel, ...next.allChannels, ...next.zoneChannels])];
+    next.start(this.context);
+    if (this.keyboard.wheelValue !== BEND_CENTRE) next.wheel(this.keyboard.wheelValue, this.keyboard.wheelRange, this.now, this.context);
+    this.observe?.({ type: 'output', time: this.now, waiting: false, waited });
+  }
+
+  private outputFree(): boolean {
+    return this.book.size === 0 && this.now - this.lastVoiceEnd >= this.outputGuardMs;
   }
 
   /** True while new notes sound in 12-ET at the reference (the pass control, for comparison). */
@@ -137,6 +213,7 @@ export class Router {
   }
 
   private done(): TimedMessage[] {
+    if (this.pendingOutput && this.outputFree()) this.swapOutput(true);
     const result = this.out;
     this.out = [];
     return result;
@@ -145,7 +222,7 @@ export class Router {
   /** The messages that set a synth up: send at start and whenever the output port (re)appears. */
   start(time: number): TimedMessage[] {
     this.begin(time);
-    this.setup.output.start(this.context);
+    this.output.start(this.context);
     return this.done();
   }
 
@@ -204,7 +281,7 @@ export class Router {
    */
   close(time: number, reason = 'end of file'): TimedMessage[] {
     this.begin(time);
-    const zone = this.zoneUsed ? this.setup.output.zoneChannels : [];
+    const zone = this.zoneUsed ? this.output.zoneChannels : [];
     this.doPanic(reason, this.everyChannel.filter((c) => this.channelsUsed.has(c) || zone.includes(c)));
     return this.done();
   }
@@ -289,15 +366,15 @@ export class Router {
         return;
       case 'program':
         this.zoneUsed = true;
-        for (const c of this.setup.output.zoneChannels) this.emit(programChange(c, message.program));
+        for (const c of this.output.zoneChannels) this.emit(programChange(c, message.program));
         return;
       case 'channel-pressure':
         this.zoneUsed = true;
-        for (const c of this.setup.output.zoneChannels) this.emit(channelPressure(c, message.value));
+        for (const c of this.output.zoneChannels) this.emit(channelPressure(c, message.value));
         return;
       case 'pitch-bend':
         this.keyboard.wheelValue = message.value;
-        this.setup.output.wheel(message.value, this.keyboard.wheelRange, this.now, this.context);
+        this.output.wheel(message.value, this.keyboard.wheelRange, this.now, this.context);
         return;
     }
   }
@@ -322,7 +399,7 @@ export class Router {
       if (pitches === spelled) pitches = [...spelled]; // never trust a speller blindly, nor change what it returned
       pitches[i] = spellKey(speller.currentWindow(), key);
     }
-    const adaptive = this.setup.adaptive;
+    const adaptive = this.tuning.adaptive;
     if (adaptive && !this.passThrough) {
       adaptive.setTonic(speller.declaredTonic?.());
       const tuned = adaptive.tuneChord(this.now, notes.map((n, i) => ({ id: n.id, pitch: pitches[i]! })));
@@ -334,9 +411,9 @@ export class Router {
 
   /** Tunes, places and starts one note (as the output can sound it: a sample set may lack a spelling). */
   private sound(id: NoteId, wanted: SpelledPitch, velocity: number, adapted?: AdaptedTunedNote): void {
-    const output = this.setup.output;
+    const output = this.output;
     const pitch = output.available ? output.available(wanted) : wanted;
-    const tuned = adapted ?? this.tables.now(this.passThrough, this.tonic).tune(pitch);
+    const tuned = adapted ?? this.tuning.tables.now(this.passThrough, this.tonic).tune(pitch);
     this.refusal = undefined;
     const placement = output.place(tuned, this.now, this.context);
     if (!placement) {
@@ -365,9 +442,9 @@ export class Router {
 
   /** Respells what sounds now with the context as it is: units retuned in place where they can be, else struck again. */
   private respell(): void {
-    const output = this.setup.output;
+    const output = this.output;
     const plan = planRespelling(this.book.voices(), (v) => this.setup.speller.peek(this.contextOf(v.id, v.velocity)), output.inPlace);
-    const table = this.tables.now(this.passThrough, this.tonic);
+    const table = this.tuning.tables.now(this.passThrough, this.tonic);
     const restrike = [...plan.restrike];
     for (const unit of plan.retune) {
       const first = unit[0]!;
@@ -383,7 +460,7 @@ export class Router {
 
   private toZone(controller: number, value: number): void {
     this.zoneUsed = true;
-    for (const c of this.setup.output.zoneChannels) this.emit(controlChange(c, controller, value));
+    for (const c of this.output.zoneChannels) this.emit(controlChange(c, controller, value));
   }
 
   /** A sustain or sostenuto pedal of one source; the synth hears the pedals' combined state. */
@@ -400,7 +477,7 @@ export class Router {
     if (isParameterController(controller)) {
       const effect = this.keyboard.parameter(source, channel, controller, value);
       if (effect === 'forward') this.toZone(controller, value);
-      else if (effect === 'wheel-range') this.setup.output.wheel(this.keyboard.wheelValue, this.keyboard.wheelRange, this.now, this.context);
+      else if (effect === 'wheel-range') this.output.wheel(this.keyboard.wheelValue, this.keyboard.wheelRange, this.now, this.context);
       return;
     }
     switch (controller) {
@@ -439,11 +516,11 @@ export class Router {
    */
   private resetControllers(source: number): void {
     for (const [controller, value] of RESET_EFFECTS) this.toZone(controller, value);
-    for (const c of this.setup.output.zoneChannels) this.emit(channelPressure(c, 0));
+    for (const c of this.output.zoneChannels) this.emit(channelPressure(c, 0));
     this.pedal(source, CC.sustain, 0);
     this.pedal(source, CC.sostenuto, 0);
     this.keyboard.wheelValue = BEND_CENTRE;
-    this.setup.output.wheel(BEND_CENTRE, this.keyboard.wheelRange, this.now, this.context);
+    this.output.wheel(BEND_CENTRE, this.keyboard.wheelRange, this.now, this.context);
   }
 
   private doPanic(reason: string, channels: readonly number[]): void {
@@ -456,8 +533,8 @@ export class Router {
       this.emit(controlChange(c, CC.soft, 0));
       this.emit(controlChange(c, CC.allNotesOff, 0));
     }
-    this.setup.output.panic(this.context, this.now);
-    this.setup.adaptive?.reset();
+    this.output.panic(this.context, this.now);
+    this.tuning.adaptive?.reset();
     this.observe?.({ type: 'panic', time: this.now, reason });
   }
 }

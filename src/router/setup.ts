@@ -2,12 +2,12 @@ import { DEFAULT_WINDOW, type KeyboardWindow } from '../pitch/index.js';
 import { ControlMap } from '../spelling/control-map.js';
 import { ControlledSpeller } from '../spelling/controlled.js';
 import { fixedSpeller, type Speller } from '../spelling/speller.js';
-import { isAdaptive, type Reference, type Tuning } from '../tuning/index.js';
-import { AdaptivePitches } from './adaptive-pitches.js';
+import type { Reference, Tuning } from '../tuning/index.js';
 import type { GatherSetting } from './chord-gatherer.js';
 import type { RouterEvent } from './events.js';
 import { OUTPUT_MODES, type OutputMode } from './output-modes.js';
 import type { OutputRequest, OutputStrategy } from './output.js';
+import type { PieceSource } from './pieces.js';
 import { PitchTable } from './pitch-table.js';
 import { Router } from './router.js';
 import { Tally } from './tally.js';
@@ -24,6 +24,10 @@ export interface EngineOptions extends OutputRequest {
   /** Chord gathering: milliseconds to wait, or `'same-time'` for files. */
   readonly gather?: GatherSetting | undefined;
   readonly observer?: ((event: RouterEvent) => void) | undefined;
+  /** The tuning's preset id and name (what a tuning change reports it changed from). */
+  readonly tuningAbout?: { readonly id: string; readonly name: string } | undefined;
+  /** A concert programme's pieces (next-piece and previous-piece move through them). */
+  readonly pieces?: PieceSource | undefined;
 }
 
 export type EngineOptionsInput = Partial<Omit<EngineOptions, 'octaveForm'>> &
@@ -62,6 +66,8 @@ export function resolveEngineOptions(input: EngineOptionsInput): EngineOptions {
     controls: input.controls ?? (input.speller instanceof ControlledSpeller ? new ControlMap([], input.speller) : undefined),
     gather: input.gather,
     observer: input.observer,
+    tuningAbout: input.tuningAbout,
+    pieces: input.pieces,
   };
 }
 
@@ -86,7 +92,9 @@ function buildRouter(options: EngineOptions): Router {
   const table = new PitchTable(options.tuning, options.reference, options.synthA4);
   return new Router({
     table,
-    adaptive: isAdaptive(options.tuning) ? new AdaptivePitches(options.tuning, options.reference, options.synthA4) : undefined,
+    tuningAbout: options.tuningAbout,
+    pieces: options.pieces,
+    releaseGuardMs: options.releaseGuardMs,
     speller: options.speller,
     output: createOutput(options, table),
     wheelRange: options.wheelRange,

@@ -1,4 +1,5 @@
 import type { MidiMessage } from '../midi/message.js';
+import type { TuningChange } from '../router/tuning-in-force.js';
 import type { ControlledSpeller } from './controlled.js';
 import type { DeclaredKey } from './keys.js';
 
@@ -9,6 +10,10 @@ export interface EngineActions {
   /** New notes in 12-ET at the reference, or back. */
   togglePass(): void;
   panic(): void;
+  /** New notes in another tuning (and reference); notes sounding finish in theirs. */
+  setTuning(change: TuningChange): void;
+  /** The next (1) or previous (−1) piece of a concert programme; nothing without one or at its ends. */
+  stepPiece(step: 1 | -1): void;
 }
 
 /** What an action acts on. */
@@ -26,6 +31,8 @@ export interface ActionEntry {
   readonly needsKey?: boolean;
   /** Needs a bar of the score (`score-bar`). */
   readonly needsBar?: boolean;
+  /** Needs a tuning (`set-tuning`). */
+  readonly needsTuning?: boolean;
   /** `on`: for a hold action whether it is on now; a press action runs only on presses. */
   run(target: ActionTarget, on: boolean, action: Action): void;
 }
@@ -44,6 +51,9 @@ export const ACTIONS = {
   'set-key': { summary: 'jump to a declared key', kind: 'press', needsKey: true, run: (t, _on, a) => a.key && t.speller.setKey(a.key) },
   'score-restart': { summary: 'the score follower starts again from the first bar', kind: 'press', run: (t) => t.speller.restartScore() },
   'score-bar': { summary: 'tell the score follower which bar the player is in', kind: 'press', needsBar: true, run: (t, _on, a) => a.bar !== undefined && t.speller.goToBar(a.bar) },
+  'set-tuning': { summary: 'new notes take another tuning (and reference); notes sounding finish in theirs', kind: 'press', needsTuning: true, run: (t, _on, a) => a.tuning && t.engine.setTuning(a.tuning) },
+  'next-piece': { summary: "the concert programme's next piece", kind: 'press', run: (t) => t.engine.stepPiece(1) },
+  'previous-piece': { summary: "the concert programme's previous piece", kind: 'press', run: (t) => t.engine.stepPiece(-1) },
   respell: { summary: 'respell the notes sounding now', kind: 'press', run: (t) => t.engine.respell() },
   pass: { summary: "toggle the synth's own 12-ET for comparison", kind: 'press', run: (t) => t.engine.togglePass() },
   panic: { summary: 'all notes off, pedals up, bends centred', kind: 'press', run: (t) => t.engine.panic() },
@@ -61,11 +71,12 @@ function forceTo(speller: ControlledSpeller, to: 'sharps' | 'flats', on: boolean
   speller.setForce(on ? to : now === to ? undefined : now);
 }
 
-/** An action as bound: its name and, for `set-key`, the key; for `score-bar`, the bar. */
+/** An action as bound: its name and, for `set-key`, the key; for `score-bar`, the bar; for `set-tuning`, the tuning. */
 export interface Action {
   readonly name: ActionName;
   readonly key?: DeclaredKey | undefined;
   readonly bar?: string | undefined;
+  readonly tuning?: TuningChange | undefined;
 }
 
 /** What fires a control: a switch pedal, a zone of an expression pedal, a key switch, a program change. */

@@ -32,13 +32,34 @@ export class ControlledSpeller implements Speller {
   private shifted = 0;
   private forced: Force = undefined;
   private isFrozen = false;
+  private strategy: Speller;
 
   constructor(
-    readonly base: Speller,
+    base: Speller,
     private readonly splits: readonly SplitKey[] = [],
     /** The key the player declared, if any; a set-key control replaces it. */
     private declared: DeclaredKey | undefined = undefined,
-  ) {}
+  ) {
+    this.strategy = base;
+  }
+
+  /** The strategy underneath (follow, key, fixed, a score). */
+  get base(): Speller {
+    return this.strategy;
+  }
+
+  /**
+   * A new strategy underneath (a concert programme's next piece) and its declared key. The
+   * player's latches (flip, force, freeze) stay as the pedals left them; the window shift, like
+   * set-key's, starts again from the new strategy. Notes still sounding end through the new
+   * strategy, which ignores notes it did not spell.
+   */
+  replaceBase(base: Speller, key: DeclaredKey | undefined): void {
+    this.strategy = base;
+    this.declared = key;
+    this.shifted = 0;
+    if (this.isFrozen) base.setFrozen?.(true);
+  }
 
   currentKey(): DeclaredKey | undefined {
     return this.base.currentKey?.();

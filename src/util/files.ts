@@ -91,13 +91,14 @@ export function listFolder(dir: string): string[] {
 }
 
 /** The kinds of file diesis writes, how they are named, and how an existing one is recognised. */
-export type OutputKind = 'midi' | 'wav' | 'log' | 'svg';
+export type OutputKind = 'midi' | 'wav' | 'log' | 'svg' | 'position';
 
 const KINDS: Readonly<Record<OutputKind, { readonly label: string; readonly extensions: readonly string[]; readonly looksLike: (head: Uint8Array) => boolean }>> = {
   midi: { label: 'a Standard MIDI File (.mid)', extensions: ['.mid', '.midi', '.smf'], looksLike: (h) => ascii(h, 0, 4) === 'MThd' },
   wav: { label: 'a WAV file (.wav)', extensions: ['.wav', '.wave'], looksLike: (h) => ascii(h, 0, 4) === 'RIFF' && ascii(h, 8, 4) === 'WAVE' },
   log: { label: 'a JSON Lines log (.jsonl)', extensions: ['.jsonl', '.ndjson', '.log', '.txt'], looksLike: (h) => h.length === 0 || h[0] === 0x7b /* { */ },
   svg: { label: 'an SVG picture (.svg)', extensions: ['.svg'], looksLike: (h) => ascii(h, 0, 5) === '<?xml' || ascii(h, 0, 4) === '<svg' },
+  position: { label: "a concert's place, kept by diesis (.position)", extensions: ['.position'], looksLike: (h) => ascii(h, 0, 11) === '{"diesis":"' },
 };
 
 /** Extensions of files diesis reads or that belong to other programs: never an output of another kind. */

@@ -80,3 +80,20 @@ describe('the stage display', () => {
     expect(view.frame()).toMatch(/pedals {2}sustain /u);
   });
 });
+
+describe('the stage display across a tuning change', () => {
+  it('shows the new tuning at once, on the screen and as a line', () => {
+    const { view, events, engine } = stage();
+    const pythagorean = loadTuningPreset('pythagorean');
+    engine.router.act(5, { action: { name: 'set-tuning', tuning: { id: 'pythagorean', name: pythagorean.name, tuning: pythagorean.tuning } }, on: true });
+    const change = events.find((e) => e.type === 'tuning')!;
+    view.event(change);
+    expect(view.line(change)).toBe(`== new notes in ${pythagorean.name} (pythagorean), A4=440`);
+    expect(view.frame().split('\n')[1]).toBe(`new notes in ${pythagorean.name} (pythagorean), A4=440`);
+    const piece: RouterEvent = { type: 'piece', time: 6, index: 1, count: 3, title: 'Drones', strategy: 'follow' };
+    view.event(piece);
+    expect(view.line(piece)).toBe('== piece 2 of 3: Drones');
+    expect(view.frame().split('\n')[3]).toMatch(/^spelling follow /u); // the piece's strategy, not the session's first
+    expect(view.frame().split('\n').slice(1, 3)).toEqual(['piece 2 of 3: Drones', `new notes in ${pythagorean.name} (pythagorean), A4=440`]);
+  });
+});

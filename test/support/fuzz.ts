@@ -3,7 +3,7 @@ import type { TimedMessage } from '../../src/midi/bytes.js';
 import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
 import { renderEvents } from '../../src/render/render-midi.js';
 import type { MidiFileContent } from '../../src/render/smf.js';
-import type { RouterEvent } from '../../src/router/router.js';
+import type { Router, RouterEvent } from '../../src/router/router.js';
 import { createEngine, createRouter, type EngineOptionsInput } from '../../src/router/setup.js';
 import { sourceOf } from '../../src/midi/note-id.js';
 import { createStrategy } from '../../src/spelling/strategy.js';
@@ -275,10 +275,17 @@ export function observe(checker: InvariantChecker, e: RouterEvent): void {
   else if (e.type === 'panic') checker.panicking();
 }
 
+/** Extra engine options, and something done between steps (a control fired, a piece changed): its messages go to the synth too. */
+export interface FuzzExtras {
+  readonly engine?: (options: EngineOptionsInput) => EngineOptionsInput;
+  readonly between?: (router: Router, time: number, step: number) => readonly TimedMessage[];
+}
+
 /** Plays steps straight into the engine (`Router.process`, `tick`, and `releaseSource` for an unplug, as the bridge does). */
-export function runEngineFuzz(setup: FuzzSetup, seed: number, steps: readonly FuzzStep[], sources: number): FuzzReport {
+export function runEngineFuzz(setup: FuzzSetup, seed: number, steps: readonly FuzzStep[], sources: number, extras: FuzzExtras = {}): FuzzReport {
   const checker = new InvariantChecker({ mode: setup.mode, tailMs: RELEASE_GUARD_MS });
-  const router = createRouter(fuzzEngine(setup, seed, (e) => observe(checker, e)));
+  const options = fuzzEngine(setup, seed, (e) => observe(checker, e));
+  const router = createRouter(extras.engine ? extras.engine(options) : options);
   const feed = (out: readonly TimedMessage[]): void => {
     for (const m of out) checker.output(m.time, m.data);
   };
@@ -286,7 +293,11 @@ export function runEngineFuzz(setup: FuzzSetup, seed: number, steps: readonly Fu
   checker.input([]);
   feed(router.start(0));
   let time = 0;
-  for (const step of steps) {
+  for (const [index, step] of steps.entries()) {
+    if (extras.between) {
+      checker.input([]);
+      feed(extras.between(router, time, index));
+    }
     // Time passes as under the bridge's timer: a tick every TICK_MS (the active-sensing timeout fires on one).
     for (let t = time + TICK_MS; t < step.time; t += TICK_MS) {
       checker.input([]);
