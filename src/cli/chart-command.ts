@@ -12,7 +12,7 @@ import { writeWav } from '../audio/wav.js';
 import { runWithOutputs } from '../util/files.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from '../util/io.js';
-import { integerOption, numberOption } from './options.js';
+import { integerOption, numberOption, optionValue } from './options.js';
 import { makeStyle, wantsColour } from '../text/style.js';
 
 interface ChartOptions {
@@ -52,8 +52,8 @@ export function registerChart(program: Command, io: CommandIo): void {
       const text = runWithOutputs([preset.file], (outputs) => {
         if (options.listen) outputs.claim('--listen', options.listen, 'wav');
         if (options.svg) outputs.claim('--svg', options.svg, 'svg');
-        const reference = options.ref !== undefined ? parseReference(options.ref, '--ref') : (preset.reference ?? A440);
-        const range = parseFifthsRange(`${options.from}..${options.to}`, '--from/--to');
+        const reference = options.ref !== undefined ? optionValue(() => parseReference(options.ref!, '--ref')) : (preset.reference ?? A440);
+        const range = optionValue(() => parseFifthsRange(`${options.from}..${options.to}`, '--from/--to'));
         const chart = buildChart({
           tuning: preset.tuning,
           reference,

@@ -16,7 +16,7 @@ const C_MAJOR: DeclaredKey = { tonic: { fifths: 0 }, mode: 'major' };
 import { createStrategy, STRATEGIES, STRATEGY_ENTRIES, type Strategy } from '../spelling/strategy.js';
 import { A440, isAdaptive, parseReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
-import { integerOption, numberOption } from './options.js';
+import { integerOption, numberOption, optionValue } from './options.js';
 
 /**
  * The options every command that runs the engine shares (render, spell, play). None has a
@@ -128,9 +128,9 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const strategyEntry = STRATEGY_ENTRIES[strategy];
   if (cli.key !== undefined && !strategyEntry.usesKey) throw new UserError(`--key has no effect with --spelling ${strategy}; use --spelling key or follow, or --window for fixed spellings`, 2);
   if (windowGiven && !strategyEntry.usesWindow) throw new UserError(`--window has no effect with --spelling ${strategy}; it sets the spellings of --spelling fixed`, 2);
-  const key = cli.key !== undefined ? parseKey(cli.key, '--key') : setup?.key;
+  const key = cli.key !== undefined ? optionValue(() => parseKey(cli.key!, '--key')) : setup?.key;
   if (strategy === 'key' && key === undefined) throw new UserError('--spelling key needs --key, as in --key "D minor"', 2);
-  const window = cli.window !== undefined ? parseWindow(cli.window, '--window') : setup?.window;
+  const window = cli.window !== undefined ? optionValue(() => parseWindow(cli.window!, '--window')) : setup?.window;
   // A score given here is read now; a setup's was read (from the setup's folder) when it was checked.
   const score = cli.score !== undefined ? readScoreFile(cli.score) : setup?.score;
   const base = createStrategy({ strategy, window, key, follow: json?.spelling?.follow });
@@ -143,7 +143,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
     tuning: preset.tuning,
     reference:
       cli.ref !== undefined
-        ? parseReference(cli.ref, '--ref')
+        ? optionValue(() => parseReference(cli.ref!, '--ref'))
         : (setup?.reference ?? (sampleSet?.manifest.reference === undefined ? undefined : parseReference(sampleSet.manifest.reference, `${cli.sampleSet}: reference`)) ?? preset.reference ?? A440),
     mode,
     layout: cli.layout ?? json?.output?.layout,

@@ -16,3 +16,16 @@ export function numberOption(name: string, min: number, max: number) {
     return n;
   };
 }
+
+/**
+ * Reads a value given on the command line (`--ref`, `--key`, `--window`, a range): one that cannot
+ * be read is a mistake in the command line itself, exit code 2, as for every other option.
+ */
+export function optionValue<T>(read: () => T): T {
+  try {
+    return read();
+  } catch (error) {
+    if (error instanceof UserError && error.exitCode !== 2) throw new UserError(error.message, 2);
+    throw error;
+  }
+}

@@ -13,7 +13,7 @@ import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './eng
 import { readInputFile, runWithOutputs } from '../util/files.js';
 import { engineInputFiles } from './command-files.js';
 import type { CommandIo } from '../util/io.js';
-import { matchSummary, scoreSpellerOf } from '../score/score-status.js';
+import { matchSummary, mismatchWarning, scoreSpellerOf } from '../score/score-status.js';
 
 export function summaryText(summary: RenderSummary, header: string): string {
   const rows: Array<[string, string]> = [
@@ -58,6 +58,9 @@ export function registerRender(program: Command, io: CommandIo): void {
     .addOption(new Option('--voice <voice>', 'the built-in voice of the preview (with --sample-set the preview plays the set)').choices(['pluck', 'organ']).default('pluck'));
   addEngineOptions(command).action((input: string, cli: RenderOptions) => {
     if (!cli.output && !cli.wav) throw new UserError('render needs -o OUT.mid or --wav OUT.wav, the file to write', 2);
+    for (const name of ['rate', 'bits', 'voice'] as const) {
+      if (!cli.wav && command.getOptionValueSource(name) === 'cli') throw new UserError(`--${name} is for the audio preview: give --wav OUT.wav too`, 2);
+    }
     const resolved = resolveEngineCli(cli);
     const { preset, options, sampleSet, spellingLabel, speller } = resolved;
     const engine = createEngine({ ...options, gather: options.gather ?? 'same-time' }); // in a file, equal onsets are a chord
@@ -88,5 +91,7 @@ export function registerRender(program: Command, io: CommandIo): void {
     io.stdout.write(summaryText(summary, `${input} → ${written}: ${setup}, spelling ${spellingLabel}`));
     const score = scoreSpellerOf(speller);
     if (score) io.stdout.write(`  ${'score'.padEnd(16)}${matchSummary(score.counts)}\n`);
+    const mismatch = score && mismatchWarning(score.counts);
+    if (mismatch) io.stderr.write(`diesis: ${mismatch}\n`);
   });
 }

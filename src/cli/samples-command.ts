@@ -8,7 +8,7 @@ import { STRATEGIES, type Strategy } from '../spelling/strategy.js';
 import { A440, formatReference, parseReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
 import type { CommandIo } from '../util/io.js';
-import { integerOption, numberOption } from './options.js';
+import { integerOption, numberOption, optionValue } from './options.js';
 import { progressBar } from './progress.js';
 
 interface SamplesOptions {
@@ -40,16 +40,16 @@ export function registerSamples(program: Command, io: CommandIo): void {
     .option('--max-shift <semitones>', 'refuse to shift a sample further than this', numberOption('--max-shift', 0, 24), 4)
     .action((cli: SamplesOptions) => {
       const preset = loadTuningPreset(cli.tuning);
-      const reference = cli.ref !== undefined ? parseReference(cli.ref, '--ref') : (preset.reference ?? A440);
+      const reference = cli.ref !== undefined ? optionValue(() => parseReference(cli.ref!, '--ref')) : (preset.reference ?? A440);
       const compass = /^(\d+)-(\d+)$/u.exec(cli.compass);
       const low = integerOption('--compass', 0, 127)(compass?.[1] ?? 'x');
       const high = integerOption('--compass', 0, 127)(compass?.[2] ?? 'x');
       if (!compass || high < low) throw new UserError(`--compass "${cli.compass}" must be two keys, low-high, as 36-96`, 2);
       setTarget(cli.to, [cli.from]); // refuse a target that would touch the player's files before any work
-      const range = cli.range !== undefined ? parseFifthsRange(cli.range, '--range') : defaultSetRange(preset.tuning);
-      const key = cli.key === undefined ? undefined : parseKey(cli.key, '--key');
+      const range = cli.range !== undefined ? optionValue(() => parseFifthsRange(cli.range!, '--range')) : defaultSetRange(preset.tuning);
+      const key = cli.key === undefined ? undefined : optionValue(() => parseKey(cli.key!, '--key'));
       if (cli.spelling === 'key' && !key) throw new UserError('--spelling key needs --key, as in --key "D minor"', 2);
-      const window = cli.window === undefined ? undefined : parseWindow(cli.window, '--window');
+      const window = cli.window === undefined ? undefined : optionValue(() => parseWindow(cli.window!, '--window'));
       const warning = reachWarning(range, spellingReach(cli.spelling, key, window), cli.spelling, preset.tuning);
       if (warning) io.stderr.write(`diesis: warning: ${warning}\n`);
       const sources = readSourceFolder(cli.from);

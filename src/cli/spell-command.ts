@@ -9,7 +9,7 @@ import { DEFAULT_WOLF_LIMITS } from '../tuning/index.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import type { CommandIo } from '../util/io.js';
 import { readInputFile } from '../util/files.js';
-import { matchOf, matchSummary, scoreSpellerOf } from '../score/score-status.js';
+import { matchOf, matchSummary, mismatchWarning, scoreSpellerOf } from '../score/score-status.js';
 import { describeSetup } from './render-command.js';
 import { makeStyle, wantsColour } from '../text/style.js';
 import { renderTable, signed } from '../text/table.js';
@@ -82,6 +82,8 @@ export function registerSpell(program: Command, io: CommandIo): void {
       tally.compromises ? `${tally.compromises} placed at a compromise pitch` : '',
     ].filter(Boolean);
     const matched = score ? `: ${matchSummary(score.counts)}` : '';
+    const mismatch = score && mismatchWarning(score.counts);
+    if (mismatch) io.stderr.write(`diesis: ${mismatch}\n`);
     io.stdout.write(`${report.rows.length} notes${matched}${extra.length ? `; ${extra.join('; ')}` : ''}\n` + report.summaryText(names));
   });
 }

@@ -23,6 +23,16 @@ export function matchSummary(counts: MatchCounts): string {
   return `${counts.score} matched to the score, ${counts.ornament} spelled from it (ornaments, extra or wrong notes), ${counts.fallback} by the fallback strategy while lost (of ${total})`;
 }
 
+/**
+ * A warning when most notes were spelled without the score: the performance and the score do not
+ * seem to be the same piece (or the same parts).
+ */
+export function mismatchWarning(counts: MatchCounts): string | undefined {
+  const total = counts.score + counts.ornament + counts.fallback;
+  if (total < 20 || counts.fallback <= total / 2) return undefined;
+  return `warning: ${Math.round((100 * counts.fallback) / total)}% of the notes could not be followed in the score: is it the score of this piece, with only the parts played?`;
+}
+
 /** The match of a note just spelled (by input source, channel and key), when a score is in use. */
 export function matchOf(speller: Speller, source: number, channel: number, key: number): NoteMatch | undefined {
   return scoreSpellerOf(speller)?.lastMatches().find((m) => m.key === key && m.channel === channel && m.source === source);

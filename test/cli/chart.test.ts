@@ -70,9 +70,9 @@ describe('diesis chart', () => {
 
   it.each([
     [['chart', 'nope'], 1, /^diesis: unknown tuning "nope"/u],
-    [['chart', 'pythagorean', '--ref', 'A4=0'], 1, /^diesis: --ref "A4=0": 0 Hz is outside 1–20000 Hz$/mu],
-    [['chart', 'pythagorean', '--ref', 'A4'], 1, /^diesis: --ref "A4" must be NOTE=HZ/mu],
-    [['chart', 'pythagorean', '--from', 'G#', '--to', 'Eb'], 1, /runs flatward/u],
+    [['chart', 'pythagorean', '--ref', 'A4=0'], 2, /^diesis: --ref "A4=0": 0 Hz is outside 1–20000 Hz$/mu],
+    [['chart', 'pythagorean', '--ref', 'A4'], 2, /^diesis: --ref "A4" must be NOTE=HZ/mu],
+    [['chart', 'pythagorean', '--from', 'G#', '--to', 'Eb'], 2, /runs flatward/u],
     [['chart', 'pythagorean', '--octave', 'x'], 2, /^diesis: --octave "x" must be a whole number/mu],
     [['chart'], 2, /^diesis: missing required argument 'tuning'$/mu],
     [['frobnicate'], 2, /^diesis: unknown command 'frobnicate'/mu],

@@ -87,7 +87,8 @@ describe('diesis render', () => {
     [['render', input, '-o', join(dir, 'n.mid'), '--mode', 'wobble'], 2, /--mode.*wobble/u],
     [['render', input, '-o', join(dir, 'n.mid'), '--channels', '0-3'], 2, /--channels "0-3"/u],
     [['render', input, '-o', join(dir, 'n.mid'), '--channels', '3,5,9'], 2, /MPE layout needs member channels/u],
-    [['render', input, '-o', join(dir, 'n.mid'), '--window', 'C..G'], 1, /--window "C\.\.G" holds 2 spellings \(1 fifth\)/u],
+    [['render', input, '-o', join(dir, 'n.mid'), '--voice', 'organ'], 2, /^diesis: --voice is for the audio preview: give --wav OUT\.wav too$/mu],
+    [['render', input, '-o', join(dir, 'n.mid'), '--window', 'C..G'], 2, /--window "C\.\.G" holds 2 spellings \(1 fifth\)/u],
   ])('fails in one line: %j', async (args, code, message) => {
     const result = await runCli(...args);
     expect(result.code).toBe(code);

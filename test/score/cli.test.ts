@@ -103,3 +103,13 @@ describe('diesis check on a setup with a score', () => {
     expect(bad.stderr).toMatch(/missing\.musicxml: no such file/u);
   });
 });
+
+describe('a score that does not match the performance', () => {
+  it('says so when most notes cannot be followed in it', async () => {
+    const other = join(CORPUS, 'mozart-scores', 'sonata01-1.mxl');
+    const wrong = await runCli('spell', take, '--score', other);
+    expect(wrong.code).toBe(0);
+    expect(wrong.stderr).toMatch(/^diesis: warning: \d+% of the notes could not be followed in the score: is it the score of this piece/mu);
+    expect((await runCli('spell', take, '--score', score)).stderr).toBe('');
+  });
+});
