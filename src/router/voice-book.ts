@@ -45,8 +45,12 @@ export class VoiceBook {
   /** The newest voice on each synth key (channel·128 + key) whose note-off has not been sent. */
   private readonly owners = new Map<number, Voice>();
   private readonly sustainBy = new Set<number>();
-  /** For each source whose sostenuto is down, the voices it latched (those held when it went down). */
-  private readonly sostenutoBy = new Map<number, Set<Voice>>();
+  private readonly sostenutoBy = new Set<number>();
+  /**
+   * The voices the sostenuto holds: those held when the first sostenuto went down. The synth has
+   * one sostenuto, so the latch follows the pedals' combined state, as the synth's does.
+   */
+  private latched = new Set<Voice>();
 
   constructor(private readonly listener: VoiceListener) {}
 
@@ -82,11 +86,14 @@ export class VoiceBook {
     return [...this.keys.keys()];
   }
 
+  private heldVoices(): Set<Voice> {
+    return new Set([...this.sounding].filter((v) => v.state === 'held'));
+  }
+
   /** The one rule: a voice whose key is up rings on while a sustain pedal is down or a sostenuto latched it. */
   heldByPedal(voice: Voice): boolean {
     if (this.sustainBy.size > 0) return true;
-    for (const latched of this.sostenutoBy.values()) if (latched.has(voice)) return true;
-    return false;
+    return this.latched.has(voice);
   }
 
   /** Books a voice that has just been sent its note-on; a voice that owned the same synth key is released first. */
@@ -127,7 +134,7 @@ export class VoiceBook {
   private end(voice: Voice, cause: EndCause): void {
     if (!this.sounding.delete(voice)) return;
     voice.state = 'ended';
-    for (const latched of this.sostenutoBy.values()) latched.delete(voice);
+    this.latched.delete(voice);
     this.listener.ended(voice, cause);
   }
 
@@ -148,12 +155,15 @@ export class VoiceBook {
   /** One source's sostenuto pedal: going down latches the voices held now. Returns whether "any sostenuto down" changed. */
   sostenuto(source: number, down: boolean): boolean {
     const before = this.sostenutoBy.size > 0;
-    if (down && !this.sostenutoBy.has(source)) {
-      this.sostenutoBy.set(source, new Set([...this.sounding].filter((v) => v.state === 'held')));
-    } else if (!down && this.sostenutoBy.delete(source)) {
+    if (down) this.sostenutoBy.add(source);
+    else this.sostenutoBy.delete(source);
+    const after = this.sostenutoBy.size > 0;
+    if (!before && after) this.latched = this.heldVoices();
+    if (before && !after) {
+      this.latched = new Set();
       this.endUnheld();
     }
-    return before !== this.sostenutoBy.size > 0;
+    return before !== after;
   }
 
   /**
@@ -185,20 +195,12 @@ export class VoiceBook {
    */
   repedal(cause: EndCause): void {
     for (const voice of this.voices()) if (voice.state === 'pedal') this.end(voice, cause);
-    for (const source of this.sostenutoBy.keys()) this.sostenutoBy.set(source, new Set([...this.sounding].filter((v) => v.state === 'held')));
-  }
-
-  /** Lets go of every key and lifts every pedal (the end of a file): release tails ring on in the synth. */
-  releaseEverything(): void {
-    for (const id of this.keysDown()) this.keyUp(id, 0);
-    this.sustainBy.clear();
-    this.sostenutoBy.clear();
-    this.endUnheld();
+    this.latched = this.sostenutoBy.size > 0 ? this.heldVoices() : new Set();
   }
 
   /** Every pedal's source, for lifting them all. */
   pedalSources(): { sustain: number[]; sostenuto: number[] } {
-    return { sustain: [...this.sustainBy], sostenuto: [...this.sostenutoBy.keys()] };
+    return { sustain: [...this.sustainBy], sostenuto: [...this.sostenutoBy] };
   }
 
   /**
@@ -224,6 +226,7 @@ export class VoiceBook {
     this.owners.clear();
     this.sustainBy.clear();
     this.sostenutoBy.clear();
+    this.latched = new Set();
     return keys;
   }
 }

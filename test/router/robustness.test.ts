@@ -115,3 +115,25 @@ describe('sustain in the multi layout', () => {
     expect(rig.worstError()).toBeLessThan(AT_2);
   });
 });
+
+describe('two devices’ sostenuto pedals: one latch, as the synth has', () => {
+  it('a note latched by the first pedal rings until the last pedal lifts, in the book as in the synth', () => {
+    const rig = new Rig(multi);
+    const agree = (): void => expect(rig.router.soundingCount).toBe(rig.model.active().length);
+    rig.on(60); // C held
+    rig.send([0xb0, 66, 127], undefined, 1); // the pedal box's sostenuto latches C
+    rig.cc(66, 127); // the keyboard's sostenuto too: the synth's is down already, nothing new is latched
+    rig.off(60);
+    agree();
+    rig.on(64); // E, held while the keyboard's sostenuto goes down again: the synth's is already down, so E is not latched
+    rig.cc(66, 0).cc(66, 127);
+    rig.off(64);
+    agree();
+    rig.send([0xb0, 66, 0], undefined, 1); // the pedal box lifts; the keyboard's sostenuto still holds C
+    expect(rig.model.active()).toHaveLength(1);
+    agree();
+    rig.cc(66, 0); // the last sostenuto lifts: C ends
+    expect(rig.model.active()).toHaveLength(0);
+    agree();
+  });
+});
