@@ -1,3 +1,4 @@
+import { seededRandom } from './random.js';
 /**
  * A seeded performance generator: it plays a file's written notes as a person might, so that
  * spelling (and score following) can be measured on input that is not quantised.
@@ -110,17 +111,6 @@ export function writtenNotes(events: readonly FileEvent[]): WrittenNote[] {
   return notes;
 }
 
-/** mulberry32, a small 32-bit seeded generator (public domain, T. Ettinger). */
-function random(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** A standard normal deviate (Box–Muller). */
 function gaussian(next: () => number): number {
@@ -130,7 +120,7 @@ function gaussian(next: () => number): number {
 /** Plays the written notes with the options' tempo, timing and mistakes. */
 export function perform(notes: readonly WrittenNote[], options: Partial<PerformanceOptions> = {}): Performance {
   const o = { ...DEFAULT_PERFORMANCE, ...options };
-  const next = random(o.seed);
+  const next = seededRandom(o.seed);
   const phase1 = 2 * Math.PI * next();
   const phase2 = 2 * Math.PI * next();
   const rate = (t: number): number => Math.exp(o.tempoDrift * Math.sin((2 * Math.PI * t) / o.tempoPeriodMs + phase1) + o.rubato * Math.sin((2 * Math.PI * t) / o.phraseMs + phase2));

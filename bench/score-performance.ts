@@ -1,3 +1,4 @@
+import { seededRandom } from './random.js';
 // A seeded generator of performances of a score, for the score-following tests and bench.
 //
 // A performance plays the score's measures in an order (every repeat taken, or one skipped, or a
@@ -63,17 +64,6 @@ export interface PlayedNote {
   readonly jump?: 'restart' | 'repeat' | undefined;
 }
 
-/** mulberry32: a small, fast, seeded generator (public domain). */
-function random(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** The measures in playing order, with a repeat skipped or restarts as asked. */
 function measurePath(score: Score, options: PerformanceOptions, rand: () => number): { path: number[]; jumps: Map<number, 'restart' | 'repeat'> } {
@@ -101,7 +91,7 @@ function measurePath(score: Score, options: PerformanceOptions, rand: () => numb
 }
 
 export function perform(score: Score, options: PerformanceOptions): PlayedNote[] {
-  const rand = random(options.seed);
+  const rand = seededRandom(options.seed);
   const pick = <T>(list: readonly T[]): T => list[Math.floor(rand() * list.length)]!;
   const { path, jumps } = measurePath(score, options, rand);
   const notes: PlayedNote[] = [];

@@ -1,29 +1,12 @@
-import { mkdirSync, readdirSync, readFileSync, statSync, symlinkSync, writeFileSync } from 'node:fs';
-import { join, relative } from 'node:path';
+import { mkdirSync, readdirSync, readFileSync, symlinkSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { writeWav } from '../../src/audio/wav.js';
 import { writeMidiFile } from '../../src/render/smf.js';
 import { runCli } from '../cli/run-cli.js';
+import { expectUntouched, snapshot } from '../support/snapshot.js';
 import { tempDir } from '../support/temp.js';
 
-function snapshot(dir: string): Map<string, Buffer> {
-  const files = new Map<string, Buffer>();
-  const walk = (d: string): void => {
-    for (const name of readdirSync(d)) {
-      const path = join(d, name);
-      if (statSync(path).isDirectory()) walk(path);
-      else files.set(relative(dir, path), readFileSync(path));
-    }
-  };
-  walk(dir);
-  return files;
-}
-
-function expectSame(dir: string, before: Map<string, Buffer>): void {
-  const after = snapshot(dir);
-  expect([...after.keys()].sort()).toEqual([...before.keys()].sort());
-  for (const [name, bytes] of before) expect(after.get(name)?.equals(bytes), name).toBe(true); // byte for byte
-}
 
 /** A player's home: their samples (a sine per key, 12-ET at A4 = 440), their notes, another folder of their own. */
 function home(): { home: string; samples: string } {
@@ -65,7 +48,7 @@ describe('diesis samples never destroys what diesis did not write', () => {
     expect(result.code).toBe(code);
     expect(result.stderr).toMatch(message);
     expect(result.stderr.trim().split('\n')).toHaveLength(1);
-    expectSame(dir, before);
+    expectUntouched(dir, before);
   });
 
   it('builds into an empty folder, and rebuilds a set it made, replacing exactly that set’s files', async () => {

@@ -1,10 +1,11 @@
-import { copyFileSync, existsSync, linkSync, mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
-import { join, relative } from 'node:path';
+import { copyFileSync, existsSync, linkSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
 import MidiParser from 'midi-parser-js';
 import { describe, expect, it } from 'vitest';
 import { writeWav } from '../../src/audio/wav.js';
 import { MAX_DELTA, writeMidiFile } from '../../src/render/smf.js';
 import { readWithIndependentParser } from '../support/smf-reader.js';
+import { expectUntouched, snapshot } from '../support/snapshot.js';
 import { tempDir } from '../support/temp.js';
 import { runCli } from './run-cli.js';
 
@@ -13,25 +14,6 @@ import { runCli } from './run-cli.js';
 const MOVEMENT = join(import.meta.dirname, '../../corpus/mozart/sonata01-2.mid');
 const CUSTOM_TUNING = join(import.meta.dirname, '../../presets/examples/custom-tuning.json');
 
-/** Every file under `dir` (relative path → bytes). */
-function snapshot(dir: string): Map<string, Buffer> {
-  const files = new Map<string, Buffer>();
-  const walk = (d: string): void => {
-    for (const name of readdirSync(d)) {
-      const path = join(d, name);
-      if (statSync(path).isDirectory()) walk(path);
-      else files.set(relative(dir, path), readFileSync(path));
-    }
-  };
-  walk(dir);
-  return files;
-}
-
-function expectUntouched(dir: string, before: Map<string, Buffer>): void {
-  const after = snapshot(dir);
-  expect([...after.keys()].sort()).toEqual([...before.keys()].sort()); // nothing added (no temporary file left), nothing removed
-  for (const [name, bytes] of before) expect(after.get(name)?.equals(bytes), name).toBe(true); // byte for byte
-}
 
 /** A player's folder: a piece, a take of their own, notes, a tuning and a setup of their own, a folder of samples. */
 function playersFolder(): string {

@@ -1,26 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { formatSpelledPitch, parseSpelledPitch, keyOf } from '../../src/pitch/index.js';
 import { FollowSpeller, signatureOf, windowCentreOf } from '../../src/spelling/follow.js';
 import { keySignatureOf, keyWindow, parseKey } from '../../src/spelling/keys.js';
 import { createStrategy } from '../../src/spelling/strategy.js';
-import type { Speller } from '../../src/spelling/speller.js';
-
-/**
- * Plays chords (lists of note names, one every `beatMs`) into a speller, each held until the next;
- * returns what it spelled. The examples are the project's own short progressions.
- */
-function play(speller: Speller, chords: string[][], beatMs = 500): string[][] {
-  let time = 0;
-  let held: number[] = [];
-  return chords.map((names) => {
-    for (const key of held) speller.noteOff({ key, velocity: 0, time, channel: 0, source: 0 });
-    const notes = names.map((n) => ({ key: keyOf(parseSpelledPitch(n)), velocity: 80, time, channel: 0, source: 0 }));
-    held = notes.map((n) => n.key);
-    const spelled = speller.spell(notes).map((p) => formatSpelledPitch(p));
-    time += beatMs;
-    return spelled;
-  });
-}
+import { play } from './pieces.js';
 
 const follow = () => new FollowSpeller();
 
