@@ -38,7 +38,7 @@ export function registerSamples(program: Command, io: CommandIo): void {
     .option('--window <from..to>', 'with --spelling fixed: the 12 spellings (default: Eb..G#)')
     .option('--compass <low-high>', 'the instrument’s keys, as MIDI numbers', '36-96')
     .option('--max-shift <semitones>', 'refuse to shift a sample further than this', numberOption('--max-shift', 0, 24), 4)
-    .action((cli: SamplesOptions) => {
+    .action((cli: SamplesOptions, command: Command) => {
       const preset = loadTuningPreset(cli.tuning);
       const reference = cli.ref !== undefined ? optionValue(() => parseReference(cli.ref!, '--ref')) : (preset.reference ?? A440);
       const compass = /^(\d+)-(\d+)$/u.exec(cli.compass);
@@ -50,9 +50,11 @@ export function registerSamples(program: Command, io: CommandIo): void {
       const key = cli.key === undefined ? undefined : optionValue(() => parseKey(cli.key!, '--key'));
       if (cli.spelling === 'key' && !key) throw new UserError('--spelling key needs --key, as in --key "D minor"', 2);
       const window = cli.window === undefined ? undefined : optionValue(() => parseWindow(cli.window!, '--window'));
-      const warning = reachWarning(range, spellingReach(cli.spelling, key, window), cli.spelling, preset.tuning);
-      if (warning) io.stderr.write(`diesis: warning: ${warning}\n`);
       const sources = readSourceFolder(cli.from);
+      // A strategy the player chose gets a warning; the default's reach (follow can spell far out) only a note.
+      const warning = reachWarning(range, spellingReach(cli.spelling, key, window), cli.spelling, preset.tuning);
+      const chosen = command.getOptionValueSource('spelling') === 'cli';
+      if (warning) io.stderr.write(`diesis: ${chosen ? 'warning' : 'note'}: ${warning}\n`);
       const bar = progressBar(io.stderr, 'resampling');
       const manifest = buildSampleSet(
         { sources, tuning: preset.tuning, tuningName: preset.name, tuningId: preset.file.startsWith(PRESETS_DIR) ? preset.id : preset.file, reference, range, compass: { low, high }, maxShift: cli.maxShift },

@@ -122,7 +122,10 @@ describe('the range of a set', () => {
     expect(follow.code).toBe(0);
     // follow takes keys of up to seven sharps or flats: C♭ major's window begins at its lowered 3rd E𝄫,
     // A♯ minor's ends at its raised 4th D𝄪 (the windows of src/spelling/keys.ts, from the corpus).
-    expect(follow.stderr).toBe("diesis: warning: the set holds Eb..G#, but --spelling follow can give Ebb..D##: a spelling outside the set plays the set's other spelling of its key, at that spelling's pitch\n");
+    // The default strategy's reach is only a note; a strategy the player chose gets a warning.
+    expect(follow.stderr).toBe("diesis: note: the set holds Eb..G#, but --spelling follow can give Ebb..D##: a spelling outside the set plays the set's other spelling of its key, at that spelling's pitch\n");
+    const chosen = await runCli('samples', '--from', samples, '--to', join(tempDir('diesis-r-'), 's'), '--compass', '60-64', '-t', 'meantone-1-4', '--range', 'Eb..G#', '--spelling', 'follow');
+    expect(chosen.stderr).toMatch(/^diesis: warning: the set holds Eb\.\.G#, but --spelling follow can give/u);
     const eminor = await runCli('samples', '--from', samples, '--to', join(tempDir('diesis-r-'), 's'), '--compass', '60-64', '-t', 'meantone-1-4', '--range', 'Eb..G#', '--spelling', 'key', '--key', 'E minor');
     expect(eminor.stderr).toMatch(/the set holds Eb\.\.G#, but --spelling key can give F\.\.A#/u); // E minor: lowered 2nd F to raised 4th A♯
     const inside = await runCli('samples', '--from', samples, '--to', join(tempDir('diesis-r-'), 's'), '--compass', '60-64', '-t', 'meantone-1-4', '--range', 'Eb..G#', '--spelling', 'key', '--key', 'D minor');
