@@ -82,7 +82,7 @@ describe('bend output: tuning and channel sharing', () => {
     rig.on(68).on(80);
     expect(rig.voice(68).channel).not.toBe(rig.voice(80).channel);
     const gap = 1200 * Math.log2(rig.model.frequency(rig.voice(80)) / 2 / rig.model.frequency(rig.voice(68)));
-    expect(gap).toBeCloseTo(41.059, 1); // the lesser diesis (Barbour 1951; memory, via ../shared/DESIGN.md)
+    expect(gap).toBeCloseTo(41.059, 1); // the lesser diesis (Barbour 1951; memory, as quoted in the design notes)
   });
 
   it('shares one channel for spellings with the same bend: all of 12-ET, both spellings of a well temperament', () => {

@@ -26,7 +26,7 @@ export interface FuzzSetup {
   /** For `bend`. */
   readonly layout: 'mpe' | 'multi';
   readonly strategy: 'fixed' | 'follow';
-  /** A tuning id for every run of this setup; otherwise one is drawn from the seed. */
+  /** A tuning id for every run of this setup; otherwise one is drawn from the run's random seed. */
   readonly tuning?: string;
 }
 
@@ -239,7 +239,7 @@ export function letGo(): number[] {
 const TUNINGS = ['meantone-1-4', 'pythagorean', 'werckmeister-3', 'just-major', 'edo-31'];
 const REFERENCES = ['A4=440', 'A4=415', 'C4=256'];
 
-/** The engine options of a fuzz run: the setup's mode and layout, a tuning and reference chosen by the seed, few channels so steals happen. */
+/** The engine options of a fuzz run: the setup's mode and layout, a tuning and reference chosen by its random seed, few channels so steals happen. */
 export function fuzzEngine(setup: FuzzSetup, seed: number, observer?: (e: RouterEvent) => void, gather?: 'same-time'): EngineOptionsInput {
   const rng = new Prng(seed ^ 0x5eed);
   const few = rng.chance(0.5);
