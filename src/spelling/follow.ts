@@ -307,10 +307,15 @@ export class FollowSpeller implements Speller {
       scores[i] = this.correlation(chromaAt(key.tonic), key.mode, norm) - this.homeCost(key);
       if (scores[i]! > top) top = scores[i]!;
     });
+    return this.weightedCentre(top);
+  }
+
+  /** The window centres of the candidate keys, weighted by how near each one's score (in `scores`) is to the best, `top`. */
+  private weightedCentre(top: number): number {
     let sum = 0;
     let weight = 0;
     this.candidates.forEach((key, i) => {
-      const w = Math.exp((scores[i]! - top) / this.p.keySoftness);
+      const w = Math.exp((this.scores[i]! - top) / this.p.keySoftness);
       sum += w * windowCentreOf(key);
       weight += w;
     });
@@ -339,14 +344,7 @@ export class FollowSpeller implements Speller {
       }
     });
     if (this.p.keySoftness > 0) {
-      let sum = 0;
-      let weight = 0;
-      this.candidates.forEach((key, i) => {
-        const w = Math.exp((scores[i]! - top) / this.p.keySoftness);
-        sum += w * windowCentreOf(key);
-        weight += w;
-      });
-      this.softCentre = sum / weight;
+      this.softCentre = this.weightedCentre(top);
       if (this.p.shortShare > 0) {
         const short = this.softOf(this.centred(this.shortWeights));
         this.softCentre += this.p.shortShare * (short - this.softCentre);

@@ -1,3 +1,4 @@
+import type { SessionOptions } from '../../src/live/session.js';
 import { spawnSync } from 'node:child_process';
 import { existsSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -45,25 +46,26 @@ describe('the MIDI system, when it cannot be opened', () => {
   });
 });
 
+/** A quiet session on virtual ports that waits for its ports to appear. */
+function waitingFor(input: string, output: string): SessionOptions {
+  return {
+    inputs: [input],
+    output,
+    engine: { tuning: loadTuningPreset('meantone-1-4').tuning, reference: A440 },
+    speller: new ControlledSpeller(createStrategy({ strategy: 'fixed' })),
+    strategy: 'fixed',
+    title: 'test',
+    quiet: true,
+    virtualOnly: true,
+    wait: true,
+  };
+}
+
 describe('--stop-after while --wait waits for a port', () => {
   it('counts the waiting time too: a port that never comes does not hold the session for ever', async () => {
     let stderr = '';
     const io = { stdout: { write: () => undefined }, stderr: { write: (s: string) => void (stderr += s) } };
-    const code = await runUntilStopped(
-      {
-        inputs: ['a keyboard that is never plugged in'],
-        output: 'a synth that is never plugged in',
-        engine: { tuning: loadTuningPreset('meantone-1-4').tuning, reference: A440 },
-        speller: new ControlledSpeller(createStrategy({ strategy: 'fixed' })),
-        strategy: 'fixed',
-        title: 'test',
-        quiet: true,
-        virtualOnly: true,
-        wait: true,
-      },
-      io,
-      0.3,
-    );
+    const code = await runUntilStopped(waitingFor('a keyboard that is never plugged in', 'a synth that is never plugged in'), io, 0.3);
     expect(code).toBe(EXIT_CODES.quit);
     expect(stderr).toContain('waiting for "a keyboard that is never plugged in", "a synth that is never plugged in"');
     expect(stderr).toContain('diesis: --stop-after 0.3: stopped while still waiting for the ports');
@@ -71,22 +73,8 @@ describe('--stop-after while --wait waits for a port', () => {
 
   it('a port that comes during the wait: the session runs, and the same timer ends it with the panic', async () => {
     const synth = new SynthModel(440);
-        const io = { stdout: { write: () => undefined }, stderr: { write: () => undefined } };
-    const running = runUntilStopped(
-      {
-        inputs: ['late keyboard'],
-        output: 'late synth',
-        engine: { tuning: loadTuningPreset('meantone-1-4').tuning, reference: A440 },
-        speller: new ControlledSpeller(createStrategy({ strategy: 'fixed' })),
-        strategy: 'fixed',
-        title: 'test',
-        quiet: true,
-        virtualOnly: true,
-        wait: true,
-      },
-      io,
-      1.5,
-    );
+    const io = { stdout: { write: () => undefined }, stderr: { write: () => undefined } };
+    const running = runUntilStopped(waitingFor('late keyboard', 'late synth'), io, 1.5);
     await new Promise((r) => setTimeout(r, 100));
     virtualOutput('late synth', (bytes) => void synth.receive(performance.now(), bytes));
     const keyboard = virtualInput('late keyboard');

@@ -1,8 +1,9 @@
-import { existsSync, mkdirSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { chromium, type Browser } from 'playwright-core';
+import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { disableMidi } from '../../src/io/midi-system.js';
+import { launchChromium } from '../support/browser.js';
 import { virtualInput, virtualOutput } from '../../src/io/virtual-ports.js';
 import { Concert, pieceSpeller } from '../../src/live/concert.js';
 import { startSession } from '../../src/live/session.js';
@@ -13,16 +14,13 @@ import { SynthModel } from '../../src/synth/reference-synth.js';
 import { A440 } from '../../src/tuning/index.js';
 import { packageRoot } from '../../src/util/package-root.js';
 
-/** Debian's chromium (installed by .ci/run when missing); no browser is downloaded. */
-const CHROMIUM = process.env['DIESIS_CHROMIUM'] ?? '/usr/bin/chromium';
 const ARTIFACTS = join(packageRoot(), 'test-artifacts');
 const quietIo = { stdout: { write: () => undefined }, stderr: { write: () => undefined } };
 const cents = (a: number, b: number): number => 1200 * Math.log2(a / b);
 
 let browser: Browser;
 beforeAll(async () => {
-  if (!existsSync(CHROMIUM)) throw new Error(`${CHROMIUM} is missing: install Debian's chromium (apt-get install -y chromium) or set DIESIS_CHROMIUM`);
-  browser = await chromium.launch({ executablePath: CHROMIUM });
+  browser = await launchChromium();
 }, 60_000);
 afterAll(async () => {
   await browser?.close();
