@@ -3,6 +3,7 @@
 import { disableMidi } from '../src/io/midi-system.js';
 import { benchAdaptive } from './adaptive.js';
 import { benchAudio } from './audio.js';
+import { benchEveryKey } from './every-key.js';
 import { benchFuzz } from './fuzz.js';
 import { benchLatency, benchSoak } from './live.js';
 import { benchRender } from './render.js';
@@ -18,6 +19,8 @@ if (!soakOnly) {
   benchTuning();
   benchRouter();
   benchSpelling();
+  benchEveryKey(false);
+  benchEveryKey(true);
   benchAdaptive();
   benchScore();
   benchAudio();

@@ -124,6 +124,13 @@ const MAX_SIGNATURE = 7;
  * fifth of distance; no other key goes beyond seven.
  */
 const BEYOND_COST = 1;
+/**
+ * When the key was declared, keys are named nearest it and may go to ten accidentals (D♯ major,
+ * the dominant of G♯ minor's dominant, from a declared C♯ major), at `BEYOND_COST` per accidental
+ * past seven: a piece declared in a remote key keeps its side of the circle through its
+ * modulations (E♯ minor from D♯ minor, not F minor).
+ */
+const DECLARED_MAX_SIGNATURE = 10;
 
 /** The flattest fifth of a key's diatonic set: major's tonic less one fifth, minor's less four (as keySignatureOf). */
 export function signatureOf(key: Key): number {
@@ -193,7 +200,9 @@ export class FollowSpeller implements Speller {
     this.current = p.initialKey ?? GUESS;
     this.homeCentre = p.homeWindow.lowest + 5.5;
     this.believe(this.current);
+    this.anchor = windowCentreOf(this.current);
     this.guessing = p.initialKey === undefined;
+    this.declared = p.initialKey !== undefined;
   }
 
   /** Starts over in `key`, as if `initialWeight` notes had been heard in it. */
@@ -210,8 +219,18 @@ export class FollowSpeller implements Speller {
     this.softCentre = NaN;
   }
 
+  /**
+   * Set when the player declared the key (`initialKey`, a set-key control): keys are then named
+   * nearest the declared key (`anchor`, its window centre) rather than the current one, so a piece
+   * declared in C♯ major or D♯ minor names its modulations on the sharp side however far they go.
+   */
+  private declared = false;
+  private anchor = 0;
+
   setKey(key: DeclaredKey): void {
     this.believe({ tonic: key.tonic.fifths, mode: isMajorLike(key.mode) ? 'major' : 'minor' });
+    this.anchor = windowCentreOf(this.current);
+    this.declared = true;
     this.guessing = false;
   }
 
@@ -364,18 +383,20 @@ export class FollowSpeller implements Speller {
    * naming centre; ties go sharpward. Keys are written with at most seven sharps or flats, but a
    * modulation to the dominant or subdominant may pass through one with eight (G♯ major from C♯
    * minor); from there the name comes back within seven at the next key, and cannot walk further.
+   * When the player declared the key, names are taken nearest the declared key instead, up to ten
+   * accidentals (see `DECLARED_MAX_SIGNATURE`).
    */
   private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
     const base = mod(7 * tonicChroma, 12);
-    const from = this.guessing ? this.p.namingCentre : windowCentreOf(this.current);
+    const from = this.guessing ? this.p.namingCentre : this.declared ? this.anchor : windowCentreOf(this.current);
     let best: Key | undefined;
     let bestCost = Infinity;
     for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
       const key: Key = { tonic, mode };
       const accidentals = Math.abs(signatureOf(key) + 1);
-      const beyond = accidentals > MAX_SIGNATURE;
-      if (beyond && (this.guessing || accidentals > MAX_SIGNATURE + 1 || Math.abs(tonic - this.current.tonic) > 1)) continue;
-      const cost = Math.abs(windowCentreOf(key) - from) + (beyond ? BEYOND_COST : 0) + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
+      const beyond = Math.max(0, accidentals - MAX_SIGNATURE);
+      if (beyond > 0 && (this.guessing || (this.declared ? accidentals > DECLARED_MAX_SIGNATURE : beyond > 1 || Math.abs(tonic - this.current.tonic) > 1))) continue;
+      const cost = Math.abs(windowCentreOf(key) - from) + BEYOND_COST * beyond + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
       if (cost <= bestCost) {
         best = key;
         bestCost = cost;

@@ -1,0 +1,43 @@
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { parseWrittenSpellings, scoreSpelling, spellEvents } from '../../bench/accuracy.js';
+import { corpusDir, loadCorpus, type CorpusName } from '../../bench/corpus.js';
+import { transpose } from '../../bench/transpose.js';
+import { DEFAULT_FOLLOW, FollowSpeller, type Key } from '../../src/spelling/follow.js';
+
+// Movements of the open corpora (corpus/, each with its LICENSE.md) moved into all twelve keys:
+// the notes by a number of semitones, the written spellings by the same interval (transposition
+// moves every spelling by one interval: common practice, no source). Played with the key declared,
+// as a player would give it with --key, `follow` must keep each piece's side of the circle through
+// its modulations: in F♯ major the dominant's relative minor is E♯ minor, not F minor.
+
+/** The written key of each movement (from memory: K. 279 i in C major, K. 280 i and ii in F major and F minor, English Suite no. 1 in A major). */
+const PIECES: ReadonlyArray<{ corpus: CorpusName; name: string; key: Key }> = [
+  { corpus: 'mozart', name: 'sonata01-1', key: { tonic: 0, mode: 'major' } },
+  { corpus: 'mozart', name: 'sonata02-1', key: { tonic: -1, mode: 'major' } },
+  { corpus: 'mozart', name: 'sonata02-2', key: { tonic: -1, mode: 'minor' } },
+  { corpus: 'bach-suites', name: 'BWV806_01_Prelude', key: { tonic: 3, mode: 'major' } },
+];
+
+describe('follow in every key, the key declared', () => {
+  for (const piece of PIECES) {
+    it(`${piece.name} keeps its spelling in all twelve keys`, () => {
+      const m = loadCorpus(corpusDir(piece.corpus)).find((x) => x.name === piece.name)!;
+      const written = parseWrittenSpellings(readFileSync(m.csvPath, 'utf8'));
+      const figures: string[] = [];
+      let worst = 1;
+      let asWritten = 0;
+      for (let semitones = -6; semitones < 6; semitones++) {
+        const t = transpose(m.midi, written, semitones)!;
+        const initialKey: Key = { tonic: piece.key.tonic + t.shift, mode: piece.key.mode };
+        const r = scoreSpelling(spellEvents(t.events, new FollowSpeller({ ...DEFAULT_FOLLOW, initialKey })), t.written);
+        worst = Math.min(worst, r.correct / r.notes);
+        if (semitones === 0) asWritten = r.correct / r.notes;
+        figures.push(`${initialKey.tonic}${initialKey.mode === 'major' ? 'M' : 'm'} ${((100 * r.correct) / r.notes).toFixed(2)}`);
+      }
+      // In every key within half a point of the movement in its own key (98.2–100% as written).
+      expect(asWritten).toBeGreaterThan(0.98);
+      expect(worst, figures.join(', ')).toBeGreaterThanOrEqual(asWritten - 0.005);
+    });
+  }
+});
