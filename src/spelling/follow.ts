@@ -125,12 +125,15 @@ const MAX_SIGNATURE = 7;
  */
 const BEYOND_COST = 1;
 /**
- * When the key was declared, keys are named nearest it and may go to ten accidentals (D♯ major,
- * the dominant of G♯ minor's dominant, from a declared C♯ major), at `BEYOND_COST` per accidental
- * past seven: a piece declared in a remote key keeps its side of the circle through its
- * modulations (E♯ minor from D♯ minor, not F minor).
+ * When the key was declared, keys are named nearest it; when it is a remote key (its window
+ * `REMOTE_KEY` fifths or more from home), names may go to ten accidentals (D♯ major, the dominant
+ * of G♯ major, from a declared C♯ major), at `BEYOND_COST` per accidental past seven: a piece
+ * declared in a remote key keeps its side of the circle through its modulations (E♯ minor from
+ * D♯ minor, not F minor), while one declared in E♭ major that moves to E major is not read in
+ * F♭ major.
  */
 const DECLARED_MAX_SIGNATURE = 10;
+const REMOTE_KEY = 4;
 
 /** The flattest fifth of a key's diatonic set: major's tonic less one fifth, minor's less four (as keySignatureOf). */
 export function signatureOf(key: Key): number {
@@ -226,6 +229,10 @@ export class FollowSpeller implements Speller {
    */
   private declared = false;
   private anchor = 0;
+  /** A declared key whose window lies `REMOTE_KEY` fifths or more from home (four accidentals or more from C major). */
+  private get remoteAnchor(): boolean {
+    return Math.abs(this.anchor - this.homeCentre) >= REMOTE_KEY;
+  }
 
   setKey(key: DeclaredKey): void {
     this.believe({ tonic: key.tonic.fifths, mode: isMajorLike(key.mode) ? 'major' : 'minor' });
@@ -383,8 +390,8 @@ export class FollowSpeller implements Speller {
    * naming centre; ties go sharpward. Keys are written with at most seven sharps or flats, but a
    * modulation to the dominant or subdominant may pass through one with eight (G♯ major from C♯
    * minor); from there the name comes back within seven at the next key, and cannot walk further.
-   * When the player declared the key, names are taken nearest the declared key instead, up to ten
-   * accidentals (see `DECLARED_MAX_SIGNATURE`).
+   * When the player declared the key, names are taken nearest the declared key instead, and from a
+   * remote declared key up to ten accidentals (see `DECLARED_MAX_SIGNATURE`).
    */
   private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
     const base = mod(7 * tonicChroma, 12);
@@ -395,7 +402,7 @@ export class FollowSpeller implements Speller {
       const key: Key = { tonic, mode };
       const accidentals = Math.abs(signatureOf(key) + 1);
       const beyond = Math.max(0, accidentals - MAX_SIGNATURE);
-      if (beyond > 0 && (this.guessing || (this.declared ? accidentals > DECLARED_MAX_SIGNATURE : beyond > 1 || Math.abs(tonic - this.current.tonic) > 1))) continue;
+      if (beyond > 0 && (this.guessing || (this.declared && this.remoteAnchor ? accidentals > DECLARED_MAX_SIGNATURE : beyond > 1 || Math.abs(tonic - this.current.tonic) > 1))) continue;
       const cost = Math.abs(windowCentreOf(key) - from) + BEYOND_COST * beyond + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
       if (cost <= bestCost) {
         best = key;
