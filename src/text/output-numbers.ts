@@ -9,6 +9,7 @@ export const OUTPUT_DECIMALS = {
   cents: 4,
   hz: 6,
   seconds: 6,
+  milliseconds: 3,
   beats: 4,
 } as const;
 

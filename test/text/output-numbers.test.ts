@@ -23,7 +23,7 @@ describe('numbers at the output boundary', () => {
   });
 
   it('names the places of each kind of figure', () => {
-    expect(OUTPUT_DECIMALS).toEqual({ cents: 4, hz: 6, seconds: 6, beats: 4 });
+    expect(OUTPUT_DECIMALS).toEqual({ cents: 4, hz: 6, seconds: 6, milliseconds: 3, beats: 4 });
     expect(outputNumber(1.23456789, 'cents')).toBe(1.2346);
     expect(outputNumber(1.23456789, 'hz')).toBe(1.234568);
   });
