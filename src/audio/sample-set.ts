@@ -20,30 +20,44 @@ export interface SourceSample {
 
 /**
  * Reads a folder of samples. The root key of each comes from `map.json` if the folder has one
- * (`{ "file.wav": { "key": 60, "hz": 261.4 } }`, `hz` optional), else from its name — a note
- * with octave (`harpsichord-C4.wav`, `Bb3.wav`, `F#5 soft.wav`) or a key number (`060.wav`,
- * `key60.wav`) — else from the file's own `smpl` chunk. A sample is taken to sound its root key
- * in 12-ET at A4 = 440 Hz unless the map gives its frequency.
+ * (`{ "file.wav": { "key": 60, "hz": 261.4 } }`, `hz` optional; an entry naming a file that is not
+ * a WAV in the folder is an error), else from its name (`rootKeyFromName`), else from the file's
+ * own `smpl` chunk. A name that gives no key, or two, is reported, never guessed. A sample is taken
+ * to sound its root key in 12-ET at A4 = 440 Hz unless the map gives its frequency.
  */
 export function readSourceFolder(dir: string): SourceSample[] {
   const names = listFolder(dir);
   let map: z.infer<typeof sourceMapSchema> = {};
+  const files = names.filter((f) => /\.wav$/iu.test(f));
   if (names.includes('map.json')) {
     const mapFile = join(dir, 'map.json');
     map = parseJsonFile(mapFile, sourceMapSchema, 'a sample map ({ "file.wav": { "key": 60, "hz": 261.4 } })');
+    for (const entry of Object.keys(map)) {
+      const problem = mapEntryProblem(entry, names, files);
+      if (problem) throw new UserError(`${mapFile}: "${entry}": ${problem}`);
+    }
   }
-  const files = names.filter((f) => /\.wav$/iu.test(f));
   if (files.length === 0) throw new UserError(`${dir}: no .wav files`);
   return files.map((f) => {
     const path = join(dir, f);
     const audio = readWav(readInputFile(path, READ_LIMITS.wav), path);
     const entry = map[f];
-    const rootKey = entry?.key ?? keyFromName(f) ?? audio.rootKey;
+    const fromName = entry?.key === undefined ? rootKeyFromName(f) : undefined;
+    if (fromName?.kind === 'problem') throw new UserError(`${path}: ${fromName.problem}: rename it, or give its key in map.json`);
+    const rootKey = entry?.key ?? (fromName?.kind === 'key' ? fromName.key : undefined) ?? audio.rootKey;
     if (rootKey === undefined || rootKey < 0 || rootKey > 127) {
-      throw new UserError(`${path}: no root key: name it after its note (C4.wav, 060.wav), add it to map.json, or give the WAV a smpl chunk`);
+      throw new UserError(`${path}: no root key: name it after its note (C4.wav, Bb3 soft.wav, Fs5.wav) or key number (060.wav, key60.wav), add it to map.json, or give the WAV a smpl chunk`);
     }
     return { file: path, audio, rootKey, hz: entry?.hz ?? 440 * 2 ** ((rootKey - 69) / 12) };
   });
+}
+
+/** What is wrong with a `map.json` entry's file name, if anything: it must be a WAV of the folder, spelled as the folder spells it. */
+function mapEntryProblem(entry: string, names: readonly string[], wavs: readonly string[]): string | undefined {
+  if (wavs.includes(entry)) return undefined;
+  if (names.includes(entry)) return 'is not a .wav file: the map lists the WAVs of the folder';
+  const nearly = wavs.find((f) => f.toLowerCase() === entry.toLowerCase());
+  return `no such file in the folder${nearly ? ` (there is "${nearly}": names must match exactly)` : ''}`;
 }
 
 const sourceMapSchema = z.record(z.string(), z.strictObject({ key: z.number().int().min(0).max(127).optional(), hz: z.number().positive().max(20_000).optional() }));
@@ -65,20 +79,48 @@ function parseJsonFile<T>(file: string, schema: z.ZodType<T>, what: string): T {
   return parsed.data;
 }
 
-/** The root key in a file name: a note with octave, or a key number. */
-export function keyFromName(file: string): number | undefined {
+/** What a sample's file name says of its root key. */
+export type NameKey =
+  | { readonly kind: 'key'; readonly key: number }
+  | { readonly kind: 'none' }
+  | { readonly kind: 'problem'; readonly problem: string };
+
+/**
+ * A word of a file name (letters and digits around it do not count) naming a note: a capital
+ * letter A–G, at most one accidental (`#`, `♯`, `s` for sharp as the set's own files are named;
+ * `b`, `♭`), and the octave, −1…9 (C4 = key 60).
+ */
+const NOTE_WORD = /(?<![\p{L}\p{N}])([A-G])([#♯sb♭]?)(-1|\d)(?![\p{L}\p{N}])/gu;
+/** A word naming a key number: three digits (`060`) or `key` and the number (`key60`); a name that is only a number is one too (`60`). */
+const NUMBER_WORD = /(?<![\p{L}\p{N}])(?:key(\d{1,3})|(\d{3}))(?![\p{L}\p{N}])/giu;
+
+/**
+ * The root key a sample's name gives: a note with octave as a word of the name
+ * (`harpsichord-C4.wav`, `Bb3 soft.wav`, `F#5.wav`, `Fs5.wav`) or a key number (`060.wav`,
+ * `piano 072.wav`, `key61.wav`, or the number alone: `60.wav`). Anything else gives no key (`s2.wav`, `take 2.wav`, `c4.wav`); a
+ * name with two different keys, or a key beyond MIDI's 0–127, is a problem.
+ */
+export function rootKeyFromName(file: string): NameKey {
   const stem = basename(file).replace(/\.wav$/iu, '');
-  const note = /(?:^|[^A-Za-z])([A-G](?:#|b|s)?)(-?\d)(?!\d)/u.exec(stem);
-  if (note) {
-    const name = `${note[1]!.replace(/s$/u, '#')}${note[2]}`;
-    try {
-      return keyOf(parseSpelledPitch(name));
-    } catch {
-      return undefined;
-    }
+  const found: Array<{ word: string; key: number }> = [];
+  for (const m of stem.matchAll(NOTE_WORD)) {
+    const accidental = m[2] === 's' || m[2] === '♯' ? '#' : m[2] === '♭' ? 'b' : m[2]!;
+    found.push({ word: m[0], key: keyOf(parseSpelledPitch(`${m[1]!}${accidental}${m[3]!}`)) });
   }
-  const number = /(?:^|key|[^0-9])(\d{1,3})$/iu.exec(stem);
-  return number ? Number(number[1]) : undefined;
+  for (const m of stem.matchAll(NUMBER_WORD)) found.push({ word: m[0], key: Number(m[1] ?? m[2]) });
+  if (/^\d{1,2}$/u.test(stem)) found.push({ word: stem, key: Number(stem) });
+  const keys = [...new Set(found.map((f) => f.key))];
+  if (keys.length === 0) return { kind: 'none' };
+  if (keys.length > 1) return { kind: 'problem', problem: `the name gives ${found.map((f) => `${f.word} (key ${f.key})`).join(' and ')}` };
+  const key = keys[0]!;
+  if (key < 0 || key > 127) return { kind: 'problem', problem: `the name gives ${found[0]!.word}, key ${key}, outside MIDI's 0–127` };
+  return { kind: 'key', key };
+}
+
+/** The root key in a file name, when the name gives exactly one (see `rootKeyFromName`). */
+export function keyFromName(file: string): number | undefined {
+  const named = rootKeyFromName(file);
+  return named.kind === 'key' ? named.key : undefined;
 }
 
 export interface SampleSetRequest {

@@ -3,6 +3,7 @@ import { renderTable, signed } from '../text/table.js';
 import type { Style } from '../text/style.js';
 import { formatReference } from '../tuning/index.js';
 import type { Chart, ChartInterval } from './chart.js';
+import { outputNumber } from '../text/output-numbers.js';
 
 export interface ChartTextOptions {
   readonly ascii: boolean;
@@ -101,13 +102,14 @@ function csvCell(s: string | number): string {
   return /[",\n]/u.test(text) ? `"${text.replace(/"/gu, '""')}"` : text;
 }
 
-/** The notes (`notes`) or the intervals (`intervals`) as CSV with a header row. */
+/** The notes (`notes`) or the intervals (`intervals`) as CSV with a header row, figures rounded as in the JSON. */
 export function chartCsv(chart: Chart, table: 'notes' | 'intervals'): string {
+  const c = (n: number): number => outputNumber(n, 'cents');
   const rows: (string | number)[][] =
     table === 'notes'
       ? [
           ['name', 'fifths', 'cents', 'hz', 'etDeviation'],
-          ...chart.notes.map((n) => [formatSpelledPitch(n.pitch), n.fifths, n.cents, n.hz, n.etDeviation]),
+          ...chart.notes.map((n) => [formatSpelledPitch(n.pitch), n.fifths, c(n.cents), outputNumber(n.hz, 'hz'), c(n.etDeviation)]),
         ]
       : [
           ['kind', 'quality', 'lower', 'upper', 'cents', 'pure', 'deviation', 'beats', 'wolf'],
@@ -116,10 +118,10 @@ export function chartCsv(chart: Chart, table: 'notes' | 'intervals'): string {
             i.quality,
             formatSpelledPitch(i.lower),
             formatSpelledPitch(i.upper),
-            i.cents,
+            c(i.cents),
             `${i.pure.p}/${i.pure.q}`,
-            i.deviation,
-            i.beats,
+            c(i.deviation),
+            outputNumber(i.beats, 'beats'),
             String(i.wolf),
           ]),
         ];

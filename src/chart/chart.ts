@@ -25,6 +25,7 @@ import {
   type Tuning,
   type WolfLimits,
 } from '../tuning/index.js';
+import { outputNumber } from '../text/output-numbers.js';
 
 export interface ChartNote {
   readonly pitch: SpelledPitch;
@@ -128,12 +129,17 @@ export function buildChart(request: ChartRequest): Chart {
   return { ...request, notes, enharmonics, intervals };
 }
 
-/** The chart as the documented JSON object (field names are stable). */
+/**
+ * The chart as the documented JSON object (field names are stable). Figures are rounded for
+ * output (`outputNumber`: cents to 4 places, Hz to 6); `exactHz` keeps the exact value.
+ */
 export function chartJson(chart: Chart, meta: { id: string; name: string; kind: string; source: string }): unknown {
   const name = (p: SpelledPitch): string => formatSpelledPitch(p);
+  const c = (n: number): number => outputNumber(n, 'cents');
+  const hz = (n: number): number => outputNumber(n, 'hz');
   return {
     tuning: meta,
-    reference: { note: name(chart.reference.pitch), hz: chart.reference.hz.valueOf() },
+    reference: { note: name(chart.reference.pitch), hz: hz(chart.reference.hz.valueOf()) },
     origin: formatPitchClass(chart.tuning.origin),
     octave: chart.octave,
     range: { from: formatPitchClass({ fifths: chart.range.lowest }), to: formatPitchClass({ fifths: chart.range.highest }) },
@@ -142,25 +148,25 @@ export function chartJson(chart: Chart, meta: { id: string; name: string; kind: 
       name: name(n.pitch),
       fifths: n.fifths,
       key: keyOf(n.pitch),
-      cents: n.cents,
-      hz: n.hz,
+      cents: c(n.cents),
+      hz: hz(n.hz),
       exactHz: n.exactHz ?? null,
-      etDeviation: n.etDeviation,
+      etDeviation: c(n.etDeviation),
     })),
     enharmonics: chart.enharmonics.map((e) => ({
       sharpward: formatPitchClass(e.sharpward),
       flatward: formatPitchClass(e.flatward),
-      difference: e.difference,
+      difference: c(e.difference),
     })),
     intervals: chart.intervals.map((i) => ({
       kind: i.kind,
       quality: i.quality,
       lower: name(i.lower),
       upper: name(i.upper),
-      cents: i.cents,
+      cents: c(i.cents),
       pure: `${i.pure.p}/${i.pure.q}`,
-      deviation: i.deviation,
-      beats: i.beats,
+      deviation: c(i.deviation),
+      beats: outputNumber(i.beats, 'beats'),
       wolf: i.wolf,
     })),
   };

@@ -2,7 +2,7 @@ import { Command, CommanderError } from 'commander';
 import { disableMidi } from '../io/midi-system.js';
 import { UserError } from '../util/errors.js';
 import { registerChart } from './chart-command.js';
-import type { CommandIo } from '../util/io.js';
+import type { CommandEnd, CommandIo } from '../util/io.js';
 import { registerPresetCommands } from './preset-commands.js';
 import { registerRender } from './render-command.js';
 import { registerSpell } from './spell-command.js';
@@ -13,7 +13,7 @@ import { registerSynthCheck } from './synth-check-command.js';
 
 const VERSION = '0.1.0';
 
-export function buildProgram(io: CommandIo): Command {
+export function buildProgram(io: CommandIo, end: CommandEnd = { code: 0 }): Command {
   const program = new Command('diesis')
     .description('spell each key the way the music means it and sound it in tune: meantone, Pythagorean, just and well temperaments over MIDI')
     .version(VERSION)
@@ -27,20 +27,21 @@ export function buildProgram(io: CommandIo): Command {
   registerPresetCommands(program, io);
   registerRender(program, io);
   registerSpell(program, io);
-  registerPlay(program, io);
+  registerPlay(program, io, end);
   registerProgramme(program, io);
   registerSamples(program, io);
-  registerSynthCheck(program, io);
+  registerSynthCheck(program, io, end);
   for (const command of program.commands) command.exitOverride().configureOutput(program.configureOutput());
   return program;
 }
 
 /** Runs the CLI; resolves to the process exit code. A UserError prints as one line. */
 export async function main(argv: readonly string[], io: CommandIo = { stdout: process.stdout, stderr: process.stderr }): Promise<number> {
-  const program = buildProgram(io);
+  const end: CommandEnd = { code: 0 };
+  const program = buildProgram(io, end);
   try {
     await program.parseAsync([...argv]);
-    return 0;
+    return end.code;
   } catch (error) {
     if (error instanceof CommanderError) return error.exitCode === 1 ? 2 : error.exitCode;
     const cause = error instanceof CommanderError ? undefined : error;

@@ -8,7 +8,7 @@ import { resolveEngineOptions } from '../router/setup.js';
 import { UserError } from '../util/errors.js';
 import { checkSessionOutputs, engineInputFiles } from './command-files.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
-import type { CommandIo } from '../util/io.js';
+import type { CommandEnd, CommandIo } from '../util/io.js';
 import { describeSetup } from './render-command.js';
 import { renderTable } from '../text/table.js';
 import { integerOption, numberOption } from './options.js';
@@ -30,7 +30,7 @@ interface PlayOptions extends EngineCliOptions, StagePageCli {
   fromStart?: boolean;
 }
 
-export function registerPlay(program: Command, io: CommandIo): void {
+export function registerPlay(program: Command, io: CommandIo, end: CommandEnd): void {
   const command = program
     .command('play')
     .description('the live bridge: keyboard (and pedals) in, a synth out, every note spelled and tuned')
@@ -81,7 +81,7 @@ export function registerPlay(program: Command, io: CommandIo): void {
       cli.stopAfter,
     );
     await disableMidi();
-    process.exitCode = code;
+    end.code = code;
   });
 
   program
@@ -97,7 +97,7 @@ export function registerPlay(program: Command, io: CommandIo): void {
       const { runDemo } = await import('../live/demo.js');
       // A player at a terminal can press q; a script cannot, so off a terminal the piece plays once.
       const loop = cli.loop === true || (cli.once !== true && process.stdin.isTTY === true);
-      process.exitCode = await runDemo(io, { loop, page: cli });
+      end.code = await runDemo(io, { loop, page: cli });
     });
 
   const portsCommand = program

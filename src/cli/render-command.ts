@@ -10,7 +10,7 @@ import { formatChannels } from '../text/channels.js';
 import { formatReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
-import { readInputFile, runWithOutputs } from '../util/files.js';
+import { readInputFile, refuseFolderInput, runWithOutputs } from '../util/files.js';
 import { engineInputFiles } from './command-files.js';
 import type { CommandIo } from '../util/io.js';
 import { matchSummary, mismatchWarning, scoreSpellerOf } from '../score/score-status.js';
@@ -58,6 +58,7 @@ export function registerRender(program: Command, io: CommandIo): void {
     .addOption(new Option('--voice <voice>', 'the built-in voice of the preview (with --sample-set the preview plays the set)').choices(['pluck', 'organ']).default('pluck'));
   addEngineOptions(command).action((input: string, cli: RenderOptions) => {
     if (!cli.output && !cli.wav) throw new UserError('render needs -o OUT.mid or --wav OUT.wav, the file to write', 2);
+    refuseFolderInput(input, 'a Standard MIDI File: give the piece to render, as piece.mid');
     for (const name of ['rate', 'bits', 'voice'] as const) {
       if (!cli.wav && command.getOptionValueSource(name) === 'cli') throw new UserError(`--${name} is for the audio preview: give --wav OUT.wav too`, 2);
     }

@@ -28,7 +28,7 @@ export function registerSamples(program: Command, io: CommandIo): void {
   program
     .command('samples')
     .description('build a retuned sample set: every spelling at its exact frequency, an SFZ map and a manifest')
-    .requiredOption('--from <dir>', 'your samples: WAV files named after their note (C4.wav, 060.wav) or listed in map.json')
+    .requiredOption('--from <dir>', 'your samples: WAV files named after their note or key (C4.wav, Bb3 soft.wav, 060.wav, key60.wav) or listed in map.json')
     .requiredOption('--to <dir>', 'the folder to write (replaced only once the whole set is made)')
     .option('-t, --tuning <id|file>', 'tuning preset id or .json file', 'meantone-1-4')
     .option('--ref <note=hz>', 'reference pitch (default: the preset’s, else A4=440)')

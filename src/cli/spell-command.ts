@@ -8,7 +8,7 @@ import { channelOf, keyOfNote, sourceOf } from '../midi/note-id.js';
 import { DEFAULT_WOLF_LIMITS } from '../tuning/index.js';
 import { addEngineOptions, resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import type { CommandIo } from '../util/io.js';
-import { readInputFile } from '../util/files.js';
+import { readInputFile, refuseFolderInput } from '../util/files.js';
 import { matchOf, matchSummary, mismatchWarning, scoreSpellerOf } from '../score/score-status.js';
 import { describeSetup } from './render-command.js';
 import { makeStyle, wantsColour } from '../text/style.js';
@@ -27,6 +27,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
     .option('--json', 'JSON Lines, one object per note-on in file order (fields in the README)')
     .option('--ascii', 'write # and b instead of ♯ and ♭');
   addEngineOptions(command).action((input: string, cli: SpellOptions) => {
+    refuseFolderInput(input, 'a Standard MIDI File: give the piece to spell, as piece.mid');
     const { preset, options, spellingLabel, speller } = resolveEngineCli(cli);
     const score = scoreSpellerOf(speller);
     const content = readMidiFile(readInputFile(input), input);

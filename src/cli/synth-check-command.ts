@@ -5,7 +5,7 @@ import { loadTuningPreset } from '../presets/tuning-presets.js';
 import { OUTPUT_MODE_IDS } from '../router/setup.js';
 import { synthCheckPlan, type CheckSettings, type SynthCheckPlan } from '../router/synth-check.js';
 import { UserError } from '../util/errors.js';
-import type { CommandIo } from '../util/io.js';
+import type { CommandEnd, CommandIo } from '../util/io.js';
 import { resolveEngineCli, type EngineCliOptions } from './engine-options.js';
 import { integerOption, numberOption } from './options.js';
 
@@ -14,7 +14,7 @@ interface SynthCheckCli extends Pick<EngineCliOptions, 'setup' | 'ref' | 'mode' 
   noteSeconds: number;
 }
 
-export function registerSynthCheck(program: Command, io: CommandIo): void {
+export function registerSynthCheck(program: Command, io: CommandIo, end: CommandEnd): void {
   program
     .command('synth-check')
     .description('play a short known sequence so you can hear that the synth takes the bend range or MTS as diesis sends them')
@@ -54,7 +54,7 @@ export function registerSynthCheck(program: Command, io: CommandIo): void {
       await enableMidi();
       const output = findOutput(cli.out!);
       if (!output) throw new UserError(`no MIDI output matches "${cli.out}" (${describePorts('output')})`);
-      process.exitCode = await runSynthCheck(plan, (bytes) => output.send([...bytes]), io);
+      end.code = await runSynthCheck(plan, (bytes) => output.send([...bytes]), io);
     });
 }
 

@@ -9,6 +9,7 @@ import { UserError } from '../util/errors.js';
 import { enableMidi, midiSystemNote } from '../io/midi-system.js';
 import type { CommandIo } from '../util/io.js';
 import { makeStyle, wantsColour } from '../text/style.js';
+import { outputNumber } from '../text/output-numbers.js';
 import { writeOutputFile } from '../util/files.js';
 import { Bridge, type BridgeNotice } from './bridge.js';
 import { LiveView } from './display.js';
@@ -59,10 +60,21 @@ export interface Session {
   stop(reason: string): void;
 }
 
-/** One JSON line per event: spellings as names, a note's identity as source, channel (1–16) and key. */
+/**
+ * One JSON line per event: spellings as names, a note's identity as source, channel (1–16) and
+ * key; figures rounded as the other JSON outputs round them (`outputNumber`: time in ms to the
+ * microsecond, Hz to 6 places, cents to 4).
+ */
 export function logLine(e: RouterEvent): string {
-  if (e.type === 'tuning') return JSON.stringify({ type: e.type, time: e.time, tuning: e.tuningId, name: e.name, reference: formatReference(e.reference) }) + '\n';
-  const fields: Record<string, unknown> = { ...e };
+  const time = outputNumber(e.time, 'milliseconds');
+  if (e.type === 'tuning') return JSON.stringify({ type: e.type, time, tuning: e.tuningId, name: e.name, reference: formatReference(e.reference) }) + '\n';
+  const fields: Record<string, unknown> = { ...e, time };
+  if (e.type === 'note') {
+    fields.hz = outputNumber(e.hz, 'hz');
+    fields.cents = outputNumber(e.cents, 'cents');
+    if (e.adaptive) fields.adaptive = { ...e.adaptive, fromTable: outputNumber(e.adaptive.fromTable, 'cents') };
+  }
+  if (e.type === 'out-of-range') fields.neededCents = outputNumber(e.neededCents, 'cents');
   if ('id' in e) {
     delete fields.id;
     Object.assign(fields, { source: sourceOf(e.id), channel: channelOf(e.id) + 1, key: keyOfNote(e.id) });

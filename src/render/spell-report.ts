@@ -4,6 +4,7 @@ import { channelOf, keyOfNote, type NoteId } from '../midi/note-id.js';
 import { PURE_FIFTH_INTERVAL, PURE_MAJOR_THIRD, pureCents, type PureInterval, type WolfLimits } from '../tuning/index.js';
 import { signed } from '../text/table.js';
 import { mod } from '../util/errors.js';
+import { outputNumber } from '../text/output-numbers.js';
 
 /** One spelled note-on of a file, as `diesis spell` reports it. */
 export interface SpellRow {
@@ -114,19 +115,19 @@ export class SpellReport {
     return [...this.wolves.values()].sort((a, b) => b.count - a.count);
   }
 
-  /** The rows as JSON Lines (the documented fields). */
+  /** The rows as JSON Lines (the documented fields), figures rounded by `outputNumber`. */
   jsonLines(): string {
     return this.rows
       .map((r) =>
         JSON.stringify({
           tick: r.tick,
-          time: r.time,
+          time: outputNumber(r.time, 'seconds'),
           key: r.key,
           channel: r.channel,
           spelling: formatSpelledPitch(r.pitch),
-          hz: r.hz,
-          cents: r.cents,
-          ...(r.fromTable === undefined ? {} : { fromTable: r.fromTable }),
+          hz: outputNumber(r.hz, 'hz'),
+          cents: outputNumber(r.cents, 'cents'),
+          ...(r.fromTable === undefined ? {} : { fromTable: outputNumber(r.fromTable, 'cents') }),
           ...(r.score && { bar: r.score.bar !== null && /^\d+$/u.test(r.score.bar) ? Number(r.score.bar) : r.score.bar, match: r.score.match }),
         }),
       )

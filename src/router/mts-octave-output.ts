@@ -18,8 +18,8 @@ export interface MtsOctaveOutputSetup {
  * for synths that take only 12-class tuning. The table follows the spellings in use: when a new
  * note needs its key class retuned (A♭ where G♯ was), the whole table is sent again before it.
  * Limit: a held note of that key class moves with it; the offsets are limited to −64…+63 cents
- * (1-byte form) or ±100 cents (2-byte form), so all keys are moved by one common shift chosen at
- * start from the reference pitch.
+ * (1-byte form) or ±100 cents (2-byte form), so all keys are moved by one common shift chosen
+ * from the reference pitch of the table it is made with.
  */
 export class MtsOctaveOutput extends SingleChannelOutput implements OutputStrategy {
   readonly inPlace: InPlaceRetuning;
@@ -28,7 +28,7 @@ export class MtsOctaveOutput extends SingleChannelOutput implements OutputStrate
 
   constructor(
     private readonly setup: MtsOctaveOutputSetup,
-    private readonly table: PitchTable,
+    table: PitchTable,
     private readonly window: KeyboardWindow,
   ) {
     super(setup.channel, setup.wheelRange, setup.sendBendRange);
@@ -50,9 +50,14 @@ export class MtsOctaveOutput extends SingleChannelOutput implements OutputStrate
     return { value: quantiseScaleOctave(Math.max(lowest, Math.min(highest, wanted)), this.setup.form), clamped: wanted < lowest || wanted > highest };
   }
 
+  /**
+   * The channel's set-up and the whole table, in the tuning in force (not the one the output was
+   * made with: after a `set-tuning`, a synth that comes back gets the new tuning on every key class).
+   */
   start(context: OutputContext): void {
     this.startChannel(context);
-    for (const pc of rangeClasses(this.window)) this.offsets[mod(chromaOf(pc) + this.shift, 12)] = this.fit(this.table.offsetOf(pc).cents).value;
+    const table = context.tableInForce();
+    for (const pc of rangeClasses(this.window)) this.offsets[mod(chromaOf(pc) + this.shift, 12)] = this.fit(table.offsetOf(pc).cents).value;
     this.send(context);
   }
 

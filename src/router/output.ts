@@ -25,6 +25,12 @@ export interface OutputContext {
   readonly pedalDown: boolean;
   /** Says why the note being placed cannot sound (before `place` returns undefined). */
   refuse(reason: string): void;
+  /**
+   * The pitch table new notes take now: a `set-tuning` action or a new piece may have changed it
+   * since the output was made. An output that sets up a whole tuning in `start` (mts-octave's 12
+   * key classes) takes it from here, so a synth that comes back gets the tuning in force.
+   */
+  tableInForce(): PitchTable;
 }
 
 /**

@@ -113,6 +113,7 @@ export class Router {
         return book.sustainDown || book.sostenutoDown;
       },
       refuse: (reason) => (this.refusal = reason),
+      tableInForce: () => this.tuning.tables.now(this.passThrough, this.tonic),
     };
     this.actions = {
       respell: () => this.respell(),

@@ -139,6 +139,18 @@ function sameFile(a: Stats, b: Stats): boolean {
   return a.dev === b.dev && a.ino === b.ino;
 }
 
+/**
+ * Checks, before any work, that a file the command reads is not a folder (`diesis render .`), so
+ * the first problem named is that one and not something about the outputs beside it; `what`
+ * says what it should be ("a Standard MIDI File: the piece to render, as piece.mid"). A folder
+ * given as `.` or a relative path is also named in full.
+ */
+export function refuseFolderInput(file: string, what: string): void {
+  if (!statOrUndefined(file)?.isDirectory()) return;
+  const full = resolve(file);
+  throw new UserError(`${file === full ? file : `${file} (${full})`}: is a folder, not ${what}`);
+}
+
 function statOrUndefined(path: string): Stats | undefined {
   try {
     return statSync(path);

@@ -1,7 +1,7 @@
 import { existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { buildSampleSet, fileStem, keyFromName, loadSampleSet, playSampleSet, readSourceFolder } from '../../src/audio/sample-set.js';
+import { buildSampleSet, fileStem, keyFromName, loadSampleSet, playSampleSet, readSourceFolder, rootKeyFromName } from '../../src/audio/sample-set.js';
 import { writeWav } from '../../src/audio/wav.js';
 import { formatSpelledPitch, keyOf, parseFifthsRange, parseSpelledPitch, parseWindow, spellKey } from '../../src/pitch/index.js';
 import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
@@ -10,6 +10,7 @@ import { fixedSpeller } from '../../src/spelling/speller.js';
 import { A440, frequency, parseReference } from '../../src/tuning/index.js';
 import { measureFrequency } from '../support/signal.js';
 import { tempDir } from '../support/temp.js';
+import { runCli } from '../cli/run-cli.js';
 
 const RATE = 48_000;
 const meantone = loadTuningPreset('meantone-1-4').tuning;
@@ -45,6 +46,59 @@ describe('retuned sample sets', () => {
     expect(keyFromName('key61.wav')).toBe(61);
     expect(keyFromName('mystery.wav')).toBeUndefined();
     expect(fileStem(parseSpelledPitch('G#4'), 4)).toBe('Gs4');
+  });
+
+  // Key numbers: MIDI 1.0 (C4 = 60 as the project's scientific octaves: common practice, no source).
+  it('reads a key from a name only where the naming rule describes one', () => {
+    expect(keyFromName('C-1.wav')).toBe(0);
+    expect(keyFromName('G9.wav')).toBe(127);
+    expect(keyFromName('piano_072.wav')).toBe(72);
+    expect(keyFromName('60.wav')).toBe(60); // a name that is only a number
+    expect(keyFromName('7.wav')).toBe(7);
+    expect(keyFromName('Key 61.wav')).toBeUndefined(); // `key` joins its number
+    expect(keyFromName('F♯5.wav')).toBe(78);
+    expect(keyFromName('C4 060.wav')).toBe(60); // two words, one key
+    for (const name of ['s2.wav', 'take 2.wav', 'b3.wav', 'c4.wav', 'C4soft.wav', 'harpsichordC4.wav', 'take 2024.wav', 'x12.wav']) {
+      expect(rootKeyFromName(name), name).toEqual({ kind: 'none' });
+    }
+    expect(rootKeyFromName('C4 take 062.wav')).toEqual({ kind: 'problem', problem: 'the name gives C4 (key 60) and 062 (key 62)' });
+    expect(rootKeyFromName('200.wav')).toEqual({ kind: 'problem', problem: "the name gives 200, key 200, outside MIDI's 0–127" });
+    expect(rootKeyFromName('G#9.wav')).toMatchObject({ kind: 'problem' });
+  });
+
+  /** A folder with one short WAV per name (no smpl chunk) and, if given, a map.json. */
+  function folderOf(names: string[], map?: unknown): string {
+    const dir = tempDir('diesis-names-');
+    for (const name of names) writeFileSync(join(dir, name), writeWav({ sampleRate: RATE, channels: [new Float32Array(64)] }, 16));
+    if (map !== undefined) writeFileSync(join(dir, 'map.json'), JSON.stringify(map));
+    return dir;
+  }
+
+  it('reports a name the rule does not describe instead of guessing a key from it', () => {
+    const dir = folderOf(['C4.wav', 's2.wav']);
+    expect(() => readSourceFolder(dir)).toThrow(new RegExp(`^${join(dir, 's2.wav').replace(/[.\\]/gu, '\\$&')}: no root key: name it after its note`, 'u'));
+    const two = folderOf(['C4 take 062.wav']);
+    expect(() => readSourceFolder(two)).toThrow(/C4 take 062\.wav: the name gives C4 \(key 60\) and 062 \(key 62\): rename it, or give its key in map\.json$/u);
+    // The map decides for a name that does not say.
+    expect(readSourceFolder(folderOf(['C4.wav', 's2.wav'], { 's2.wav': { key: 62 } })).map((s) => s.rootKey)).toEqual([60, 62]);
+  });
+
+  it('refuses a map.json entry naming a file the folder does not have, in one line', () => {
+    const dir = folderOf(['C4.wav'], { 'C4.wav': { key: 60 }, 'D4.wav': { key: 62 } });
+    const mapFile = join(dir, 'map.json');
+    expect(() => readSourceFolder(dir)).toThrow(`${mapFile}: "D4.wav": no such file in the folder`);
+    expect(() => readSourceFolder(folderOf(['C4.wav'], { 'c4.wav': { key: 60 } }))).toThrow(/"c4\.wav": no such file in the folder \(there is "C4\.wav": names must match exactly\)$/u);
+    const notWav = folderOf(['C4.wav'], { 'map.json': { key: 60 } });
+    expect(() => readSourceFolder(notWav)).toThrow(/"map\.json": is not a \.wav file/u);
+  });
+
+  it('diesis samples stops on such a folder with one line and exit code 1, writing nothing', async () => {
+    const dir = folderOf(['C4.wav'], { 'D4.wav': { key: 62 } });
+    const to = join(tempDir('diesis-set-'), 'out');
+    const result = await runCli('samples', '--from', dir, '--to', to);
+    expect(result.code).toBe(1);
+    expect(result.stderr).toBe(`diesis: ${join(dir, 'map.json')}: "D4.wav": no such file in the folder\n`);
+    expect(existsSync(to)).toBe(false);
   });
 
   it('maps every spelling to its own file, channel and key', () => {

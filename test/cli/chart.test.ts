@@ -63,6 +63,31 @@ describe('diesis chart', () => {
     expect((await runCli('chart', 'edo-31', '--csv', 'chords')).code).toBe(2);
   });
 
+  /** The number of decimal places a figure prints with (JSON and CSV print the shortest form). */
+  const places = (n: number): number => (String(n).includes('e') ? Infinity : (String(n).split('.')[1] ?? '').length);
+
+  it('rounds its JSON figures: cents to 4 places, Hz to 6, no float noise', async () => {
+    const { stdout } = await runCli('chart', 'edo-12', '--json');
+    expect(stdout).not.toMatch(/\d[eE][-+]?\d/u);
+    const chart = JSON.parse(stdout) as JsonChart;
+    // 12-ET: every fifth is 700 cents and every major third 400, both exactly (common practice, no source).
+    for (const i of chart.intervals) expect(i.cents, `${i.lower}-${i.upper}`).toBe(i.kind === 'fifth' ? 700 : 400);
+    for (const n of chart.notes) expect(n.etDeviation, n.name).toBe(0);
+    for (const n of chart.notes) expect(places(n.hz), n.name).toBeLessThanOrEqual(6);
+    for (const i of chart.intervals) for (const v of [i.deviation, i.beats]) expect(places(v)).toBeLessThanOrEqual(4);
+    const pythagorean = JSON.parse((await runCli('chart', 'pythagorean', '--ref', 'C4=100', '--json')).stdout) as JsonChart;
+    // 164025/1024 Hz = 160.1806640625 exactly, printed to the micro-hertz; exactHz keeps the fraction.
+    expect(pythagorean.notes.find((n) => n.name === 'G#4')).toMatchObject({ hz: 160.180664, exactHz: '164025/1024' });
+  });
+
+  it('rounds its CSV figures as its JSON', async () => {
+    const notes = (await runCli('chart', 'edo-12', '--csv')).stdout.trim().split('\n').slice(1);
+    for (const line of notes) expect(line.split(',')[4], line).toBe('0'); // etDeviation in 12-ET (common practice, no source)
+    const intervals = (await runCli('chart', 'edo-12', '--csv', 'intervals')).stdout.trim().split('\n').slice(1);
+    for (const line of intervals) expect(['700', '400'], line).toContain(line.split(',')[4]);
+    expect(intervals.join('\n')).not.toMatch(/\d[eE][-+]?\d/u);
+  });
+
   it('uses the preset’s reference unless --ref is given', async () => {
     const { stdout } = await runCli('chart', 'presets/examples/custom-tuning.json', '--json');
     expect((JSON.parse(stdout) as JsonChart).reference).toEqual({ note: 'A4', hz: 415 });

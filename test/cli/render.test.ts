@@ -1,3 +1,4 @@
+import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
@@ -94,6 +95,23 @@ describe('diesis render', () => {
     expect(result.code).toBe(code);
     expect(result.stderr).toMatch(message);
     expect(result.stderr.trim().split('\n')).toHaveLength(1);
+  });
+});
+
+describe('a folder given as the piece', () => {
+  it.each(['render', 'spell'])('%s names the folder and says it is not a MIDI file, before anything about the outputs', async (command) => {
+    const folder = tempDir('diesis-piece-');
+    const args = command === 'render' ? [command, folder, '-o', join(folder, 'out.mid')] : [command, folder];
+    const result = await runCli(...args);
+    expect(result.code).toBe(1);
+    expect(result.stderr).toBe(`diesis: ${folder}: is a folder, not a Standard MIDI File: give the piece to ${command}, as piece.mid\n`);
+  });
+
+  it('diesis render . names the folder in full', () => {
+    const folder = tempDir('diesis-piece-');
+    const result = spawnSync(process.execPath, [join(import.meta.dirname, '../../bin/diesis.js'), 'render', '.', '-o', 'out.mid'], { cwd: folder, encoding: 'utf8' });
+    expect(result.status).toBe(1);
+    expect(result.stderr).toBe(`diesis: . (${folder}): is a folder, not a Standard MIDI File: give the piece to render, as piece.mid\n`);
   });
 });
 

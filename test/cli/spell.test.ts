@@ -33,6 +33,17 @@ describe('diesis spell', () => {
     expect(rows[1]!.time).toBeGreaterThan(0);
   });
 
+  it('rounds hz to 6 places, cents to 4 and time to the microsecond', async () => {
+    const { stdout } = await runCli('spell', movement, '--json', '-t', 'just-major', '--spelling', 'key', '--key', 'C major');
+    const rows = stdout.trim().split('\n').map((l) => JSON.parse(l) as Row);
+    const places = (n: number): number => (String(n).includes('e') ? Infinity : (String(n).split('.')[1] ?? '').length);
+    expect(rows.every((r) => places(r.hz) <= 6 && places(r.cents) <= 4 && places(r.time) <= 6)).toBe(true);
+    // Just major on C at A4 = 440: F is 4/3 over C and A 5/3, so F3 = 440 · (4/5) / 2 = 176 Hz exactly (common practice, no source).
+    const f = rows.filter((r) => /^F-?\d+$/u.test(r.spelling));
+    expect(f.length).toBeGreaterThan(0);
+    for (const r of f) expect(r.hz, r.spelling).toBe(176 * 2 ** (Number(r.spelling.slice(1)) - 3));
+  });
+
   it('follows the options: --spelling fixed with --window, or key with --key', async () => {
     const spellingsOf = async (...args: string[]) =>
       new Set(

@@ -52,6 +52,50 @@ describe('signals and crashes end the session with a panic first', () => {
   });
 });
 
+/** Runs a command in a child process, sends SIGINT once its output matches `ready`, and gives what it printed and its exit code. */
+function interrupted(args: string[], ready: RegExp): Promise<{ exitCode: number | null; stdout: string; stderr: string }> {
+  return new Promise((resolve, reject) => {
+    const child = spawn(process.execPath, args, { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
+    let stdout = '';
+    let stderr = '';
+    let sent = false;
+    child.stdout.on('data', (chunk: Buffer) => {
+      stdout += chunk.toString();
+      if (!sent && ready.test(stdout)) {
+        sent = true;
+        child.kill('SIGINT');
+      }
+    });
+    child.stderr.on('data', (chunk: Buffer) => (stderr += chunk.toString()));
+    const timer = setTimeout(() => {
+      child.kill('SIGKILL');
+      reject(new Error(`the child did not finish: ${stdout}${stderr}`));
+    }, 20_000);
+    child.on('exit', (exitCode) => {
+      clearTimeout(timer);
+      resolve({ exitCode, stdout, stderr });
+    });
+  });
+}
+
+// Exit codes for a signal: 128 + its number (SIGINT 2), as shells report a process a signal ended (common practice, no source).
+describe('Ctrl-C ends play and the demo alike: every note released, then exit 130', () => {
+  it('play started through the command line (main), not only through the session', async () => {
+    const { exitCode, stdout } = await interrupted([join(root, 'test/fixtures/main-child.js')], /^ready 3$/mu);
+    expect(stdout).toMatch(/^ready 3$/mu); // a chord was sounding when Ctrl-C came
+    expect(JSON.parse(stdout.trim().split('\n').pop() ?? '{}')).toEqual({ code: 130, active: 0 });
+    expect(exitCode).toBe(130);
+  });
+
+  it('diesis demo (what npm start runs)', async () => {
+    // Interrupted in the flipped bar (A♭4 is printed there), while the piece plays on with --loop.
+    const { exitCode, stdout } = await interrupted([join(root, 'bin/diesis.js'), 'demo', '--loop', '--no-page'], /A♭4\s+key\s+68/u);
+    expect(stdout).toMatch(/PANIC \(SIGINT\)/u);
+    expect(stdout).toMatch(/nothing is left sounding\.\n$/u); // the demo's own synth holds nothing at the end
+    expect(exitCode).toBe(130);
+  });
+});
+
 describe('npm start', () => {
   it('runs the demo on a machine without MIDI hardware and exits 0', async () => {
     const { stdout, stderr, exitCode } = await new Promise<{ stdout: string; stderr: string; exitCode: number | null }>((resolve) => {

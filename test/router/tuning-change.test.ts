@@ -9,6 +9,7 @@ import { ControlledSpeller } from '../../src/spelling/controlled.js';
 import { fixedSpeller } from '../../src/spelling/speller.js';
 import { A440, parseReference } from '../../src/tuning/index.js';
 import { Rig } from '../support/rig.js';
+import { SynthModel } from '../../src/synth/reference-synth.js';
 
 const meantone = loadTuningPreset('meantone-1-4');
 const pythagorean = loadTuningPreset('pythagorean');
@@ -139,6 +140,21 @@ describe('set-tuning: new notes take the new tuning, notes sounding finish in th
     expect(Math.abs(cents(rig.model.frequency(rig.voice(64)), MEANTONE_E4_AT_440))).toBeLessThan(1);
     rig.at(20).on(76); // E5: the E key class is retuned, and the held E4 with it (the limit of 12-class tuning)
     expect(Math.abs(cents(rig.model.frequency(rig.voice(64)), PYTHAGOREAN_E4_AT_440))).toBeLessThan(1);
+  });
+
+  it('mts-octave: a synth that comes back after a set-tuning gets the tuning in force on every key class', () => {
+    const speller = controlled();
+    const rig = new Rig({ tuning: meantone.tuning, reference: A440, mode: 'mts-octave', speller, controls: new ControlMap([], speller) });
+    rig.at(0).on(60).off(60);
+    rig.deliver(rig.router.act(5, { action: { name: 'set-tuning', tuning: toPythagorean }, on: true }));
+    // The output port goes and returns (src/live/bridge.ts): panic, then the set-up messages again, into a synth that starts afresh.
+    const synth = new SynthModel(440, 0);
+    for (const m of [...rig.router.panic(100, 'output back'), ...rig.router.start(100)]) synth.receive(m.time, m.data);
+    // The synth's own table, played directly (no retune from diesis before it): E4 and A4 before any key is played again.
+    const e4 = synth.receive(110, [0x90, 64, 100])!;
+    expect(Math.abs(cents(synth.frequency(e4), PYTHAGOREAN_E4_AT_440))).toBeLessThan(0.1);
+    const a4 = synth.receive(110, [0x90, 69, 100])!;
+    expect(Math.abs(cents(synth.frequency(a4), 440))).toBeLessThan(0.1);
   });
 
   it('adaptive tuning after a fixed one: new chords are tuned by a fresh tuner, the held note stays', () => {
