@@ -87,15 +87,18 @@ function levelShift(level: Level, anchor: number, snap: number): number {
   return (w * shift + s * lattice) / (w + s);
 }
 
+/** A number naming a spelled pitch (its line-of-fifths position and octave), for maps on the note path. */
+function pitchKey(pitch: SpelledPitch): number {
+  return (pitch.fifths + 512) * 1024 + (pitch.octave + 512);
+}
+
 /** One note of each pitch sounding (spelling, octave and cents alike): a unison doubling counts once. */
 function distinctPitches(notes: readonly AdaptedNote[]): AdaptedNote[] {
-  const seen = new Set<string>();
-  return notes.filter((h) => {
-    const key = `${h.pitch.fifths}:${h.pitch.octave}:${h.cents.toFixed(6)}`;
-    if (seen.has(key)) return false;
-    seen.add(key);
-    return true;
-  });
+  const kept: AdaptedNote[] = [];
+  for (const h of notes) {
+    if (!kept.some((k) => k.pitch.fifths === h.pitch.fifths && k.pitch.octave === h.pitch.octave && Math.abs(k.cents - h.cents) < 1e-6)) kept.push(h);
+  }
+  return kept;
 }
 
 /** The median; of an even count, whichever middle value asks for the smaller shift (the lower on a tie). */
@@ -205,11 +208,11 @@ export class AdaptiveTuner {
     // A new note in unison with a held one takes the held note's pitch: two parts a few cents
     // apart on one note beat, and a synth sounding them on one key cannot tell them apart.
     const held = distinctPitches(this.soundingNotes());
-    const heldPitch = new Map(held.map((h) => [`${h.pitch.fifths}:${h.pitch.octave}`, h]));
+    const heldPitch = new Map(held.map((h) => [pitchKey(h.pitch), h]));
     const notes: Array<{ readonly pitch: SpelledPitch }> = [];
-    const slotOf = new Map<string, number>();
+    const slotOf = new Map<number, number>();
     const slots = given.map((g) => {
-      const key = `${g.pitch.fifths}:${g.pitch.octave}`;
+      const key = pitchKey(g.pitch);
       if (heldPitch.has(key)) return -1;
       let slot = slotOf.get(key);
       if (slot === undefined) slotOf.set(key, (slot = notes.push({ pitch: g.pitch }) - 1));
@@ -307,7 +310,7 @@ export class AdaptiveTuner {
     for (let g = 0; g < given.length; g++) {
       const { id, pitch } = given[g]!;
       const i = slots[g]!;
-      const unison = i < 0 ? heldPitch.get(`${pitch.fifths}:${pitch.octave}`)! : undefined;
+      const unison = i < 0 ? heldPitch.get(pitchKey(pitch))! : undefined;
       const c = unison ? unison.cents : x[i]!;
       const compromise = unison ? unison.compromise : compromised[i]!;
       const note: AdaptedNote = { id, pitch, cents: c, hz: this.reference.hz.valueOf() * 2 ** (c / 1200), fromTable: unison ? unison.fromTable : c - tableCents[i]!, compromise };
