@@ -1,3 +1,4 @@
+import { performance } from 'node:perf_hooks';
 import { DEFAULT_WINDOW, keyOf, type PitchClass, type SpelledPitch } from '../src/pitch/index.js';
 import { createEngine } from '../src/router/setup.js';
 import type { Speller } from '../src/spelling/speller.js';
@@ -35,8 +36,10 @@ function writtenSpeller(notes: readonly WrittenNote[], tonic: PitchClass | undef
  * Plays written notes through the whole engine (mts-note, so every note's frequency is said to
  * 0.006 cent) into the reference synth and reports what the synth sounds: each voice's start with
  * the frequency the synth gives it, any change of that frequency while it sounds, and its end.
+ * `costPerNote` receives, for each onset, the engine's microseconds (its `process` and `flush`
+ * calls, the synth excluded) divided by the notes that begin there.
  */
-export function soundedThroughEngine(notes: readonly WrittenNote[], tuning: Tuning, tonic: PitchClass | undefined): SoundingEvent[] {
+export function soundedThroughEngine(notes: readonly WrittenNote[], tuning: Tuning, tonic: PitchClass | undefined, costPerNote?: number[]): SoundingEvent[] {
   const pending: Array<{ channel: number; key: number; pitch: SpelledPitch }> = [];
   const { router } = createEngine({
     tuning,
@@ -92,14 +95,24 @@ export function soundedThroughEngine(notes: readonly WrittenNote[], tuning: Tuni
       down.delete(channel * 128 + keyOf(n.pitch));
       deliver(router.process(t, [0x80 | channel, keyOf(n.pitch), 0]));
     }
-    for (const n of ons.get(t) ?? []) {
+    // the engine's own time for the onset's notes (decode, spell, tune, place, encode), per note
+    let spent = 0;
+    const starting = ons.get(t) ?? [];
+    for (const n of starting) {
       let channel = 0;
       while (down.has(channel * 128 + keyOf(n.pitch)) && channel < 15) channel++;
       down.add(channel * 128 + keyOf(n.pitch));
       channelOf.set(n, channel);
-      deliver(router.process(t, [0x90 | channel, keyOf(n.pitch), 80]));
+      const start = performance.now();
+      const out = router.process(t, [0x90 | channel, keyOf(n.pitch), 80]);
+      spent += performance.now() - start;
+      deliver(out);
     }
-    deliver(router.flush(t));
+    const start = performance.now();
+    const out = router.flush(t);
+    spent += performance.now() - start;
+    if (starting.length > 0) costPerNote?.push((spent * 1000) / starting.length);
+    deliver(out);
   }
   deliver(router.releaseAll(times[times.length - 1] ?? 0));
   return events;

@@ -4,7 +4,7 @@ import { Note } from '@tonaljs/tonal';
 import { keyOf, parseSpelledPitch } from '../../src/pitch/index.js';
 import { checkTuningPreset, loadTuningPreset } from '../../src/presets/tuning-presets.js';
 import { frequency, reference } from '../../src/tuning/index.js';
-import { AdaptiveTuner, bassDrift, consonanceDeviation, measurePurity, synthOffset, type SoundingEvent } from '../../src/tuning/adaptive/index.js';
+import { AdaptiveTuner, consonanceDeviation, measurePurity, synthOffset, tonicDrift, type SoundingEvent } from '../../src/tuning/adaptive/index.js';
 import { runCli } from '../cli/run-cli.js';
 
 // Just ratios and the 12-ET fifth of 700 cents: common practice, no source.
@@ -47,19 +47,40 @@ describe('the purity measure (time, Hz, on/off events)', () => {
     expect(report.byFamily['major third/minor sixth'].meanAbs).toBeCloseTo(0, 9);
   });
 
-  it('measures the drift of a pitch class where it is the lowest note', () => {
+  it('counts an interval once per distinct pitch: a unison doubling or a note struck again at its pitch adds none', () => {
+    const fifthAbove = 200 * 2 ** (cents('3/2') / 1200);
+    const events: SoundingEvent[] = [
+      { kind: 'on', time: 0, id: 1, hz: 200, pitch: P('G3') },
+      { kind: 'on', time: 0, id: 2, hz: fifthAbove, pitch: P('D4') },
+      { kind: 'on', time: 0, id: 3, hz: fifthAbove, pitch: P('D4') }, // a second part in unison
+      { kind: 'off', time: 10, id: 2 }, // one part re-strikes its D at the same pitch
+      { kind: 'on', time: 10, id: 4, hz: fifthAbove, pitch: P('D4') },
+      { kind: 'on', time: 20, id: 5, hz: 250, pitch: P('B3') }, // a new pitch: 5/4 over G, 6/5 under D
+    ];
+    const report = measurePurity(events);
+    expect(report.notes).toBe(5);
+    expect(report.byFamily['fifth/fourth'].count).toBe(1);
+    expect(report.byFamily['major third/minor sixth'].count).toBe(1);
+    expect(report.byFamily['minor third/major sixth'].count).toBe(1);
+    expect(report.all.meanAbs).toBeCloseTo(0, 9);
+  });
+
+  it('measures the drift of the tonic where it sounds in the bass, whichever part sounds it', () => {
     const comma = cents('81/80');
     const events: SoundingEvent[] = [
       { kind: 'on', time: 0, id: 1, hz: 130, pitch: P('C3') },
       { kind: 'off', time: 1, id: 1 },
       { kind: 'on', time: 2, id: 2, hz: 100, pitch: P('G2') },
-      { kind: 'on', time: 2, id: 3, hz: 260 * 2 ** (30 / 1200), pitch: P('C4') }, // not the bass: ignored
+      { kind: 'on', time: 2, id: 3, hz: 260 * 2 ** (30 / 1200), pitch: P('C4') }, // not in the bass: a chord's fifth may stand off
       { kind: 'off', time: 3, id: 2 },
       { kind: 'off', time: 3, id: 3 },
+      // the last C in the bass, doubled in unison by two parts, a comma down
       { kind: 'on', time: 4, id: 4, hz: 65 * 2 ** (-comma / 1200), pitch: P('C2') },
+      { kind: 'on', time: 4, id: 5, hz: 65 * 2 ** (-comma / 1200), pitch: P('C2') },
+      { kind: 'on', time: 4, id: 6, hz: 65 * 2 * 2 ** (-comma / 1200), pitch: P('C3') },
     ];
-    expect(bassDrift(events, P('C3').fifths)).toBeCloseTo(-comma, 9);
-    expect(bassDrift(events, P('F3').fifths)).toBeUndefined();
+    expect(tonicDrift(events, P('C3').fifths)).toBeCloseTo(-comma, 9);
+    expect(tonicDrift(events, P('F3').fifths)).toBeUndefined();
   });
 });
 

@@ -85,6 +85,25 @@ describe('adaptive just intonation: chords are pure where the spelling allows', 
     expect([...a.values()].every((n) => !n.compromise)).toBe(true);
   });
 
+  it('parts in unison sound one pitch: a new note in unison with a held one takes its pitch, and its octaves are pure', () => {
+    const t = tuner();
+    const g = chord(t, 0, 'G4');
+    // G–D–A with G doubled in unison and at two octaves below: the second G4 is the held one's pitch
+    const c = chord(t, 100, 'D3 A4 G2 G4');
+    expect(note(c, 'G4').hz).toBe(note(g, 'G4').hz);
+    expect(Math.abs(size(note(c, 'G2'), note(g, 'G4')) - cents('4/1'))).toBeLessThan(0.01);
+  });
+
+  it('a doubled part weighs once: the same chord against a held note doubled in unison is placed alike', () => {
+    const single = tuner();
+    chord(single, 0, 'A3 C4 E4');
+    const a = chord(single, 100, 'F3 D4');
+    const doubled = tuner();
+    chord(doubled, 0, 'A3 A3 C4 E4');
+    const b = chord(doubled, 100, 'F3 D4');
+    for (const name of ['F3', 'D4']) expect(note(b, name).hz, name).toBeCloseTo(note(a, name).hz, 9);
+  });
+
   it('a diminished fourth is not a major third: C over a held A♭ is 5/4, over a held G♯ it is 32/25', () => {
     const flat = tuner();
     const ab = chord(flat, 0, 'Ab3');
@@ -270,13 +289,17 @@ describe('adaptive just intonation: compromises', () => {
 });
 
 describe('the just-adaptive preset', () => {
-  it('is a just-adaptive tuning whose fixed table is the 5-limit just-major table', () => {
+  it('is a just-adaptive tuning whose fixed table is the 5-limit just-major table with its minor seventh at 9/5', () => {
     expect(isAdaptive(table)).toBe(true);
     expect(preset.kind).toBe('just-adaptive');
     const major = loadTuningPreset('just-major').tuning;
-    for (const name of ['C4', 'D4', 'Eb4', 'E4', 'F4', 'F#4', 'G4', 'Ab4', 'A4', 'Bb4', 'B4', 'C#4', 'G#4']) {
+    for (const name of ['C4', 'D4', 'Eb4', 'E4', 'F4', 'F#4', 'G4', 'Ab4', 'A4', 'B4', 'C#4', 'G#4']) {
       expect(frequency(table, A440, P(name)), name).toBe(frequency(major, A440, P(name)));
     }
+    // B♭ is 9/5 above C (the minor seventh the interval table aims at by default), so the
+    // relative major's triad B♭–D–F of a minor key on the table is pure: C4 = 440·3/5
+    expect(frequency(table, A440, P('Bb4'))).toBeCloseTo(440 * (3 / 5) * (9 / 5), 9);
+    expect(DEFAULT_ADAPTIVE.minorSeventh).toBe('9/5');
     // the preset ships the documented defaults
     if (isAdaptive(table)) expect(table.settings).toEqual(DEFAULT_ADAPTIVE);
   });

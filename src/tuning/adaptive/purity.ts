@@ -23,7 +23,7 @@ export interface FamilyDeviation {
 }
 
 export interface PurityReport {
-  /** Every interval counted once, when its second note starts (and again if a note moves). */
+  /** Every interval between distinct pitches counted once, when it forms (and again if a note moves). */
   readonly byFamily: Readonly<Record<ConsonanceFamily, FamilyDeviation>>;
   readonly all: FamilyDeviation;
   /** Frequency changes of notes that were sounding. */
@@ -51,6 +51,12 @@ interface Sounding {
   readonly pitch: SpelledPitch | undefined;
 }
 
+/** Two notes of one spelling (when known) within 0.01 cent: a unison doubling, heard as one pitch. */
+function sameSound(a: Sounding, b: Sounding): boolean {
+  const samePitch = a.pitch && b.pitch ? a.pitch.fifths === b.pitch.fifths && a.pitch.octave === b.pitch.octave : true;
+  return samePitch && Math.abs(1200 * Math.log2(a.hz / b.hz)) < 0.01;
+}
+
 /** Which consonance two notes make and how far from pure, or undefined when they make none. */
 export function consonanceDeviation(
   a: { readonly hz: number; readonly pitch?: SpelledPitch | undefined },
@@ -65,39 +71,64 @@ export function consonanceDeviation(
   return { family: pure.family, deviation: d - 1200 * Math.round(d / 1200) };
 }
 
-/** Mean |deviation from pure| of every fifth, fourth, third and sixth that sounds, and the notes moved while sounding. */
+/**
+ * Mean |deviation from pure| of every fifth, fourth, third and sixth that sounds, and the notes
+ * moved while sounding.
+ *
+ * Events are taken a timestamp at a time. An interval is counted when it forms: once both of its
+ * pitches sound and one of them did not sound just before (a new note, or a note that moved).
+ * Pitches, not notes, are paired: parts in unison (one spelling, within 0.01 cent) sound one
+ * pitch, and a synth sounds them on one key, so a doubled part does not count its intervals twice;
+ * nor does a note struck again at the pitch it had (a repeated note, or a unison re-struck on its
+ * synth key) count again the intervals that merely go on sounding through it.
+ */
 export function measurePurity(events: Iterable<SoundingEvent>): PurityReport {
   const sounding = new Map<number | string, Sounding>();
   const sums = new Map<ConsonanceFamily, { count: number; sum: number; max: number }>(CONSONANCE_FAMILIES.map((f) => [f, { count: 0, sum: 0, max: 0 }]));
   let moved = 0;
   let notes = 0;
-  const pairWithSounding = (id: number | string, note: Sounding): void => {
-    for (const [otherId, other] of sounding) {
-      if (otherId === id) continue;
-      const c = consonanceDeviation(note, other);
-      if (!c) continue;
-      const s = sums.get(c.family)!;
-      s.count++;
-      s.sum += Math.abs(c.deviation);
-      s.max = Math.max(s.max, Math.abs(c.deviation));
+  let before: Sounding[] = [];
+  let changed = false;
+  let stepTime = NaN;
+  const settle = (): void => {
+    if (!changed) return;
+    changed = false;
+    const now: Sounding[] = [];
+    for (const note of sounding.values()) if (!now.some((p) => sameSound(p, note))) now.push({ ...note });
+    for (let i = 0; i < now.length; i++) {
+      const fresh = !before.some((p) => sameSound(p, now[i]!));
+      for (let k = 0; k < now.length; k++) {
+        if (k === i) continue;
+        // a pair with two fresh pitches is counted once, from its first
+        if (!fresh || (k < i && !before.some((p) => sameSound(p, now[k]!)))) continue;
+        const c = consonanceDeviation(now[i]!, now[k]!);
+        if (!c) continue;
+        const s = sums.get(c.family)!;
+        s.count++;
+        s.sum += Math.abs(c.deviation);
+        s.max = Math.max(s.max, Math.abs(c.deviation));
+      }
     }
+    before = now;
   };
   for (const e of events) {
+    if (e.time !== stepTime) settle();
+    stepTime = e.time;
     if (e.kind === 'on') {
       notes++;
-      const note: Sounding = { hz: e.hz, pitch: e.pitch };
-      pairWithSounding(e.id, note);
-      sounding.set(e.id, note);
+      sounding.set(e.id, { hz: e.hz, pitch: e.pitch });
+      changed = true;
     } else if (e.kind === 'change') {
       const note = sounding.get(e.id);
       if (!note || note.hz === e.hz) continue;
       moved++;
       note.hz = e.hz;
-      pairWithSounding(e.id, note);
-    } else {
-      sounding.delete(e.id);
+      changed = true;
+    } else if (sounding.delete(e.id)) {
+      changed = true;
     }
   }
+  settle();
   const summary = (s: { count: number; sum: number; max: number }): FamilyDeviation => ({ count: s.count, meanAbs: s.count ? s.sum / s.count : 0, maxAbs: s.max });
   const total = [...sums.values()].reduce((t, s) => ({ count: t.count + s.count, sum: t.sum + s.sum, max: Math.max(t.max, s.max) }), { count: 0, sum: 0, max: 0 });
   return {
@@ -109,14 +140,19 @@ export function measurePurity(events: Iterable<SoundingEvent>): PurityReport {
 }
 
 /**
- * Drift of one pitch class over a performance — the tonic's, given the piece's final: the cents
- * from the first onset where it is the lowest note sounding to the last such onset, octaves
- * removed. Undefined when it never sounds in the bass.
+ * Drift of the tonic over a performance: where one pitch class (the tonic's: the piece's final
+ * bass) sounds in the bass at its last onset there against its first, octaves removed, in cents.
+ * At each of the two times every note of that class beginning then as the lowest pitch sounding
+ * counts (their mean). In the bass the class is nearly always a chord's root, where a level that
+ * stays put keeps it; as a chord's third or sixth it may stand a comma from there without any
+ * drift (the D of D–F–A against C–E–G). The bass is the lowest pitch sounding, whichever part
+ * sounds it: parts in unison share one synth key, and one of them may end first. Undefined when
+ * the class never sounds in the bass.
  */
-export function bassDrift(events: Iterable<SoundingEvent>, fifths: number): number | undefined {
+export function tonicDrift(events: Iterable<SoundingEvent>, fifths: number): number | undefined {
   const sounding = new Map<number | string, number>();
-  let first: number | undefined;
-  let last: number | undefined;
+  let first: { time: number; cents: number[] } | undefined;
+  let last: { time: number; cents: number[] } | undefined;
   let pending: Array<{ hz: number; fifths: number | undefined }> = [];
   let pendingTime = NaN;
   const settle = (): void => {
@@ -124,9 +160,11 @@ export function bassDrift(events: Iterable<SoundingEvent>, fifths: number): numb
     const lowest = Math.min(...sounding.values());
     for (const p of pending) {
       if (p.fifths !== fifths || p.hz > lowest) continue;
-      const c = 1200 * Math.log2(p.hz);
-      first ??= c;
-      last = c;
+      const c = 1200 * Math.log2(p.hz / 440);
+      if (first === undefined) first = { time: pendingTime, cents: [] };
+      if (first.time === pendingTime) first.cents.push(c);
+      if (last === undefined || last.time !== pendingTime) last = { time: pendingTime, cents: [] };
+      last.cents.push(c);
     }
     pending = [];
   };
@@ -144,6 +182,10 @@ export function bassDrift(events: Iterable<SoundingEvent>, fifths: number): numb
   }
   settle();
   if (first === undefined || last === undefined) return undefined;
-  const d = last - first;
-  return d - 1200 * Math.round(d / 1200);
+  const at = (onset: { cents: number[] }, near: number): number => {
+    const reduced = onset.cents.map((c) => c - 1200 * Math.round((c - near) / 1200));
+    return reduced.reduce((sum, c) => sum + c, 0) / reduced.length;
+  };
+  const start = at(first, first.cents[0]!);
+  return at(last, start) - start;
 }

@@ -52,7 +52,7 @@ export const DEFAULT_ADAPTIVE: AdaptiveSettings = {
   limit: 5,
   minorSeventh: '9/5',
   anchor: 0.8,
-  snap: 2,
+  snap: 3,
   recentWeight: 0.05,
   recentWhileHeld: false,
   recentHalfLifeMs: 500,

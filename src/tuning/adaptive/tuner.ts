@@ -50,6 +50,8 @@ interface Level {
   count: number;
   /** (table − pitch) of each spelled pitch class sounding: the held notes' and the group's as shaped. */
   readonly offsets: number[];
+  /** The same of the group's new notes alone. */
+  readonly fresh: number[];
   recentWeight: number;
   recentPull: number;
 }
@@ -61,29 +63,42 @@ export const SYNTONIC_COMMA_CENTS = 1200 * Math.log2(81 / 80);
  * The common shift of a group of new notes. Held notes resist it (weight `held`, target 0);
  * `anchor` pulls toward the fixed table — the median offset of what sounds, so a chord whose
  * notes mostly sit on the table is not pulled for the one note a comma away (the D of D–F–A in
- * C major) while a texture a comma off is; the notes just heard pull toward their intervals.
- * `snap` then pulls the result to the nearest level a whole number of commas from the table,
- * which heals the fractions of a comma that compromises leave, at little cost in purity.
+ * C major) while a texture a comma off is, but never past the table; the notes just heard pull
+ * toward their intervals. `snap` then pulls the result to the nearest level that puts the new
+ * notes' median a whole number of commas from the table, which heals the fractions of a comma
+ * that compromises leave, at little cost in purity.
  */
 function levelShift(level: Level, anchor: number, snap: number): number {
-  const table = median([...level.offsets]);
+  // The new notes' own median offset. Held notes only temper the pull toward the table: the
+  // target lies between 0 and `own`, so the anchor never pushes new notes past the table (toward
+  // where held notes stray) when they are tied to those notes by dissonances alone.
+  const own = median([...level.fresh]);
+  const table = Math.min(Math.max(median([...level.offsets]), Math.min(0, own)), Math.max(0, own));
   const a = anchor * level.count;
   const free = level.held + a + level.recentWeight;
   const shift = free > 0 ? (a * table + level.recentPull) / free : table;
   const s = snap * (level.held + level.count);
   if (s === 0) return shift;
-  // circular mean of the offsets' phase within a comma
-  let cos = 0;
-  let sin = 0;
-  for (const d of level.offsets) {
-    const angle = (2 * Math.PI * d) / SYNTONIC_COMMA_CENTS;
-    cos += Math.cos(angle);
-    sin += Math.sin(angle);
-  }
-  const phase = (Math.atan2(sin, cos) / (2 * Math.PI)) * SYNTONIC_COMMA_CENTS;
-  const lattice = phase + SYNTONIC_COMMA_CENTS * Math.round((shift - phase) / SYNTONIC_COMMA_CENTS);
+  // The lattice of the new notes' median: a shift of `own` puts that note on the table, and
+  // whole commas from it keep it a whole comma off. A median, not a mean: one note the shape
+  // had to compromise (a fifth given up for a second) does not move the lattice.
+  const lattice = own + SYNTONIC_COMMA_CENTS * Math.round((shift - own) / SYNTONIC_COMMA_CENTS);
   const w = free > 0 ? free : 1;
   return (w * shift + s * lattice) / (w + s);
+}
+
+/** A number naming a spelled pitch (its line-of-fifths position and octave), for maps on the note path. */
+function pitchKey(pitch: SpelledPitch): number {
+  return (pitch.fifths + 512) * 1024 + (pitch.octave + 512);
+}
+
+/** One note of each pitch sounding (spelling, octave and cents alike): a unison doubling counts once. */
+function distinctPitches(notes: readonly AdaptedNote[]): AdaptedNote[] {
+  const kept: AdaptedNote[] = [];
+  for (const h of notes) {
+    if (!kept.some((k) => k.pitch.fifths === h.pitch.fifths && k.pitch.octave === h.pitch.octave && Math.abs(k.cents - h.cents) < 1e-6)) kept.push(h);
+  }
+  return kept;
 }
 
 /** The median; of an even count, whichever middle value asks for the smaller shift (the lower on a tie). */
@@ -122,9 +137,13 @@ const GAUGE = 1e-9;
  *    W·s² + anchor·n·(s − s_table)² + recent·(s − s_recent)², then drawn toward the nearest whole
  *    number of syntonic commas from the table (`snap`; see `levelShift`). W is the weight of the
  *    group's intervals to sounding notes (a shift costs that much purity), s_table the median
- *    offset of what sounds from the fixed table, s_recent what the notes just heard ask for
- *    (fading with a half-life). Moving only the level keeps a new chord pure among itself
- *    whatever the memory and anchor terms ask; with nothing sounding it lands on the table.
+ *    offset of what sounds from the fixed table (kept between 0 and the new notes' own median),
+ *    s_recent what the notes just heard ask for (fading with a half-life). Moving only the level
+ *    keeps a new chord pure among itself whatever the memory and anchor terms ask; with nothing
+ *    sounding it lands on the table.
+ *
+ * Parts in unison are one pitch: a spelled pitch sounding or struck twice is tuned and weighed
+ * once, and a new note in unison with a held one takes the held note's pitch.
  *
  * Drift: after `phraseGapMs` of silence the notes heard before are forgotten and the next chord
  * starts on the table (the tonic where the table has it); while notes sound, `anchor` trades
@@ -179,11 +198,26 @@ export class AdaptiveTuner {
   }
 
   /** Notes that begin together, tuned jointly: pure among themselves and fitted to what sounds. */
-  chordOn(time: number, notes: ReadonlyArray<{ readonly id: AdaptiveNoteId; readonly pitch: SpelledPitch }>): AdaptedNote[] {
-    for (const n of notes) if (this.sounding.has(n.id)) this.noteOff(time, n.id);
-    if (notes.length === 0) return [];
+  chordOn(time: number, given: ReadonlyArray<{ readonly id: AdaptiveNoteId; readonly pitch: SpelledPitch }>): AdaptedNote[] {
+    for (const n of given) if (this.sounding.has(n.id)) this.noteOff(time, n.id);
+    if (given.length === 0) return [];
     this.forget(time);
-    const held = this.soundingNotes();
+    // Parts in unison sound one pitch: each distinct spelled pitch is tuned once and weighs once,
+    // so a doubled note neither outvotes the others nor holds the level harder than a single one
+    // (and the engine, which sounds a unison on one synth key, hears the same chord as the score).
+    // A new note in unison with a held one takes the held note's pitch: two parts a few cents
+    // apart on one note beat, and a synth sounding them on one key cannot tell them apart.
+    const held = distinctPitches(this.soundingNotes());
+    const heldPitch = new Map(held.map((h) => [pitchKey(h.pitch), h]));
+    const notes: Array<{ readonly pitch: SpelledPitch }> = [];
+    const slotOf = new Map<number, number>();
+    const slots = given.map((g) => {
+      const key = pitchKey(g.pitch);
+      if (heldPitch.has(key)) return -1;
+      let slot = slotOf.get(key);
+      if (slot === undefined) slotOf.set(key, (slot = notes.push({ pitch: g.pitch }) - 1));
+      return slot;
+    });
     const present = new Set<number>([...held.map((h) => h.pitch.fifths), ...notes.map((n) => n.pitch.fifths)]);
     const n = notes.length;
     const tableCents = notes.map((note) => this.tableCents(note.pitch));
@@ -228,13 +262,18 @@ export class AdaptiveTuner {
     // One offset per spelled pitch class: a doubled note does not outvote the others.
     const heldOff = new Map<number, number>();
     for (const h of held) if (!heldOff.has(h.pitch.fifths)) heldOff.set(h.pitch.fifths, this.tableCents(h.pitch) - h.cents);
-    const groups = new Map<number, Level & { classes: Map<number, number> }>();
+    const groups = new Map<number, Level & { classes: Map<number, number>; freshClasses: Set<number> }>();
     for (let i = 0; i < n; i++) {
       const g = root(i);
       let level = groups.get(g);
-      if (!level) groups.set(g, (level = { held: 0, count: 0, offsets: [], classes: new Map(heldOff), recentWeight: 0, recentPull: 0 }));
+      if (!level) groups.set(g, (level = { held: 0, count: 0, offsets: [], fresh: [], freshClasses: new Set(), classes: new Map(heldOff), recentWeight: 0, recentPull: 0 }));
       level.held += heldWeight[i]!;
-      if (!level.classes.has(notes[i]!.pitch.fifths)) level.classes.set(notes[i]!.pitch.fifths, tableCents[i]! - x[i]!);
+      const fifths = notes[i]!.pitch.fifths;
+      if (!level.classes.has(fifths)) level.classes.set(fifths, tableCents[i]! - x[i]!);
+      if (!level.freshClasses.has(fifths)) {
+        level.freshClasses.add(fifths);
+        level.fresh.push(tableCents[i]! - x[i]!);
+      }
       level.count++;
     }
     for (const level of groups.values()) level.offsets.push(...level.classes.values());
@@ -261,19 +300,20 @@ export class AdaptiveTuner {
     const shifts = new Map<number, number>();
     for (const [g, level] of groups) shifts.set(g, levelShift(level, anchor, snap));
     for (let i = 0; i < n; i++) x[i] = x[i]! + shifts.get(root(i))!;
-    const placed: AdaptedNote[] = [];
-    for (let i = 0; i < n; i++) {
-      const { id, pitch } = notes[i]!;
+    const compromised = notes.map(({ pitch }, i) => {
       const c = x[i]!;
-      let compromise = false;
-      const check = (other: SpelledPitch, otherCents: number): void => {
-        if (compromise || !this.intervals.isConsonant(other, pitch)) return;
-        const t = this.intervals.target(other, pitch, present);
-        if (Math.abs(c - otherCents - t.cents) > this.settings.compromiseCents) compromise = true;
-      };
-      for (const h of held) check(h.pitch, h.cents);
-      for (let k = 0; k < n; k++) if (k !== i) check(notes[k]!.pitch, x[k]!);
-      const note: AdaptedNote = { id, pitch, cents: c, hz: this.reference.hz.valueOf() * 2 ** (c / 1200), fromTable: c - tableCents[i]!, compromise };
+      const off = (other: SpelledPitch, otherCents: number): boolean =>
+        this.intervals.isConsonant(other, pitch) && Math.abs(c - otherCents - this.intervals.target(other, pitch, present).cents) > this.settings.compromiseCents;
+      return held.some((h) => off(h.pitch, h.cents)) || notes.some((k, j) => j !== i && off(k.pitch, x[j]!));
+    });
+    const placed: AdaptedNote[] = [];
+    for (let g = 0; g < given.length; g++) {
+      const { id, pitch } = given[g]!;
+      const i = slots[g]!;
+      const unison = i < 0 ? heldPitch.get(pitchKey(pitch))! : undefined;
+      const c = unison ? unison.cents : x[i]!;
+      const compromise = unison ? unison.compromise : compromised[i]!;
+      const note: AdaptedNote = { id, pitch, cents: c, hz: this.reference.hz.valueOf() * 2 ** (c / 1200), fromTable: unison ? unison.fromTable : c - tableCents[i]!, compromise };
       this.sounding.set(id, note);
       this.glideAt.set(id, this.glide);
       placed.push(note);
