@@ -203,9 +203,8 @@ export class FollowSpeller implements Speller {
     this.current = p.initialKey ?? GUESS;
     this.homeCentre = p.homeWindow.lowest + 5.5;
     this.believe(this.current);
-    this.anchor = windowCentreOf(this.current);
     this.guessing = p.initialKey === undefined;
-    this.declared = p.initialKey !== undefined;
+    if (p.initialKey !== undefined) this.declaredCentre = windowCentreOf(p.initialKey);
   }
 
   /** Starts over in `key`, as if `initialWeight` notes had been heard in it. */
@@ -223,21 +222,15 @@ export class FollowSpeller implements Speller {
   }
 
   /**
-   * Set when the player declared the key (`initialKey`, a set-key control): keys are then named
-   * nearest the declared key (`anchor`, its window centre) rather than the current one, so a piece
-   * declared in C♯ major or D♯ minor names its modulations on the sharp side however far they go.
+   * The window centre of the key the player declared (`initialKey`, a set-key control), if any:
+   * keys are then named nearest it rather than the current one, so a piece declared in C♯ major or
+   * D♯ minor names its modulations on the sharp side however far they go.
    */
-  private declared = false;
-  private anchor = 0;
-  /** A declared key whose window lies `REMOTE_KEY` fifths or more from home (four accidentals or more from C major). */
-  private get remoteAnchor(): boolean {
-    return Math.abs(this.anchor - this.homeCentre) >= REMOTE_KEY;
-  }
+  private declaredCentre: number | undefined;
 
   setKey(key: DeclaredKey): void {
     this.believe({ tonic: key.tonic.fifths, mode: isMajorLike(key.mode) ? 'major' : 'minor' });
-    this.anchor = windowCentreOf(this.current);
-    this.declared = true;
+    this.declaredCentre = windowCentreOf(this.current);
     this.guessing = false;
   }
 
@@ -395,14 +388,14 @@ export class FollowSpeller implements Speller {
    */
   private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
     const base = mod(7 * tonicChroma, 12);
-    const from = this.guessing ? this.p.namingCentre : this.declared ? this.anchor : windowCentreOf(this.current);
+    const from = this.guessing ? this.p.namingCentre : (this.declaredCentre ?? windowCentreOf(this.current));
     let best: Key | undefined;
     let bestCost = Infinity;
     for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
       const key: Key = { tonic, mode };
       const accidentals = Math.abs(signatureOf(key) + 1);
       const beyond = Math.max(0, accidentals - MAX_SIGNATURE);
-      if (beyond > 0 && (this.guessing || (this.declared && this.remoteAnchor ? accidentals > DECLARED_MAX_SIGNATURE : beyond > 1 || Math.abs(tonic - this.current.tonic) > 1))) continue;
+      if (beyond > 0 && !this.mayGoBeyond(key, accidentals)) continue;
       const cost = Math.abs(windowCentreOf(key) - from) + BEYOND_COST * beyond + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
       if (cost <= bestCost) {
         best = key;
@@ -410,6 +403,14 @@ export class FollowSpeller implements Speller {
       }
     }
     return best ?? { tonic: base, mode };
+  }
+
+  /** Whether a key past seven accidentals may be named (see `BEYOND_COST` and `DECLARED_MAX_SIGNATURE`). */
+  private mayGoBeyond(key: Key, accidentals: number): boolean {
+    if (this.guessing) return false;
+    const declared = this.declaredCentre;
+    if (declared !== undefined && Math.abs(declared - this.homeCentre) >= REMOTE_KEY) return accidentals <= DECLARED_MAX_SIGNATURE;
+    return accidentals === MAX_SIGNATURE + 1 && Math.abs(key.tonic - this.current.tonic) <= 1;
   }
 
   /** The key the speller believes it is in. */
