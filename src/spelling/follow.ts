@@ -134,6 +134,19 @@ const BEYOND_COST = 1;
  */
 const DECLARED_MAX_SIGNATURE = 10;
 const REMOTE_KEY = 4;
+/**
+ * With no key declared, keys past seven sharps (up to `DECLARED_MAX_SIGNATURE`) are named when the
+ * music's region (the key's window centre averaged over time, halving every `REGION_HALF_LIFE_MS`)
+ * lies at `SHARP_REGION` or beyond on the line of fifths (F♯ major, G♯ minor and sharper) and the
+ * key lies within `SHARP_REACH` fifths of the one in force: a piece in C♯ major names its mediant
+ * E♯ minor and its V/vi D♯ major, as keyboard music in the sharpest keys writes them (common
+ * practice, from memory), instead of falling to F minor and E♭ major and staying on the flat side.
+ * Past seven flats only the old rule applies (measured: letting flats go as far lost up to six
+ * points on pieces in five flats).
+ */
+const SHARP_REGION = 8;
+const SHARP_REACH = 4;
+const REGION_HALF_LIFE_MS = 60_000;
 
 /** The flattest fifth of a key's diatonic set: major's tonic less one fifth, minor's less four (as keySignatureOf). */
 export function signatureOf(key: Key): number {
@@ -219,6 +232,7 @@ export class FollowSpeller implements Speller {
     this.chromaT.fill(-Infinity);
     this.resolvedT.fill(-Infinity);
     this.softCentre = NaN;
+    this.region = NaN;
   }
 
   /**
@@ -227,6 +241,9 @@ export class FollowSpeller implements Speller {
    * D♯ minor names its modulations on the sharp side however far they go.
    */
   private declaredCentre: number | undefined;
+  /** Where the music has been: the key's window centre averaged over time (NaN until a key is found), and when last updated. */
+  private region = NaN;
+  private regionTime = 0;
 
   setKey(key: DeclaredKey): void {
     this.believe({ tonic: key.tonic.fifths, mode: isMajorLike(key.mode) ? 'major' : 'minor' });
@@ -405,11 +422,21 @@ export class FollowSpeller implements Speller {
     return best ?? { tonic: base, mode };
   }
 
+  /** Moves the region towards the key in force (see `SHARP_REGION`). */
+  private followRegion(time: number): void {
+    if (this.guessing) return;
+    const centre = windowCentreOf(this.current);
+    if (Number.isNaN(this.region)) this.region = centre;
+    else this.region += (1 - 0.5 ** ((time - this.regionTime) / REGION_HALF_LIFE_MS)) * (centre - this.region);
+    this.regionTime = time;
+  }
+
   /** Whether a key past seven accidentals may be named (see `BEYOND_COST` and `DECLARED_MAX_SIGNATURE`). */
   private mayGoBeyond(key: Key, accidentals: number): boolean {
     if (this.guessing) return false;
     const declared = this.declaredCentre;
     if (declared !== undefined && Math.abs(declared - this.homeCentre) >= REMOTE_KEY) return accidentals <= DECLARED_MAX_SIGNATURE;
+    if (this.region >= SHARP_REGION && signatureOf(key) > 0 && accidentals <= DECLARED_MAX_SIGNATURE && Math.abs(windowCentreOf(key) - windowCentreOf(this.current)) <= SHARP_REACH) return true;
     return accidentals === MAX_SIGNATURE + 1 && Math.abs(key.tonic - this.current.tonic) <= 1;
   }
 
@@ -440,6 +467,7 @@ export class FollowSpeller implements Speller {
       }
       this.heard += notes.length;
       this.update();
+      this.followRegion(notes[0]!.time);
     }
     // The whole group counts before any of it is spelled, and it is spelled as one chord.
     const centre = this.centre();

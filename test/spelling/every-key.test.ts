@@ -41,3 +41,25 @@ describe('follow in every key, the key declared', () => {
     });
   }
 });
+
+// With no key given, a piece in the sharpest keys names its modulations past seven sharps (E♯
+// minor and D♯ major in C♯ major) rather than falling to the flat side for good. Before this rule
+// these four were spelled 2–58% as written.
+const SHARPEST: ReadonlyArray<{ name: string; semitones: number; fifths: number; floor: number; key: string }> = [
+  { name: 'sonata01-1', semitones: 1, fifths: 7, floor: 0.98, key: 'C♯ major' },
+  { name: 'sonata07-1', semitones: 1, fifths: 7, floor: 0.98, key: 'C♯ major' },
+  { name: 'sonata01-3', semitones: 6, fifths: 6, floor: 0.98, key: 'F♯ major' },
+  { name: 'sonata02-2', semitones: 3, fifths: 9, floor: 0.95, key: 'G♯ minor' },
+];
+
+describe('follow in the sharpest keys, no key given', () => {
+  const movements = loadCorpus(corpusDir('mozart'));
+  for (const piece of SHARPEST) {
+    it(`${piece.name} in ${piece.key} keeps its sharps`, () => {
+      const m = movements.find((x) => x.name === piece.name)!;
+      const t = transpose(m.midi, parseWrittenSpellings(readFileSync(m.csvPath, 'utf8')), piece.semitones, piece.fifths)!;
+      const r = scoreSpelling(spellEvents(t.events, new FollowSpeller(DEFAULT_FOLLOW)), t.written);
+      expect(r.correct / r.notes).toBeGreaterThanOrEqual(piece.floor);
+    });
+  }
+});
