@@ -120,22 +120,23 @@ const GUESS: Key = { tonic: 0, mode: 'major' };
 const MAX_SIGNATURE = 7;
 /**
  * A modulation to the dominant or subdominant may pass through a key of eight accidentals (G♯ major,
- * the dominant of C♯ major or minor; F♭ major, the subdominant of C♭ major), at a cost of one
- * fifth of distance; no other key goes beyond seven.
+ * the dominant of C♯ major or minor; F♭ major, the subdominant of C♭ major); each accidental past
+ * seven costs one fifth of distance in naming. Further keys only as below.
  */
 const BEYOND_COST = 1;
+/** The most accidentals a key named past seven may have (D♯ major, nine; A♯ major, ten). */
+const MAX_FAR_SIGNATURE = 10;
 /**
  * When the key was declared, keys are named nearest it; when it is a remote key (its window
- * `REMOTE_KEY` fifths or more from home), names may go to ten accidentals (D♯ major, the dominant
- * of G♯ major, from a declared C♯ major), at `BEYOND_COST` per accidental past seven: a piece
+ * `REMOTE_KEY` fifths or more from home), names may go to `MAX_FAR_SIGNATURE` accidentals (D♯
+ * major, the dominant of G♯ major, from a declared C♯ major), at `BEYOND_COST` per accidental past seven: a piece
  * declared in a remote key keeps its side of the circle through its modulations (E♯ minor from
  * D♯ minor, not F minor), while one declared in E♭ major that moves to E major is not read in
  * F♭ major.
  */
-const DECLARED_MAX_SIGNATURE = 10;
 const REMOTE_KEY = 4;
 /**
- * With no key declared, keys past seven sharps (up to `DECLARED_MAX_SIGNATURE`) are named when the
+ * With no key declared, keys past seven sharps (up to `MAX_FAR_SIGNATURE`) are named when the
  * music's region (the key's window centre averaged over time, halving every `REGION_HALF_LIFE_MS`)
  * lies at `SHARP_REGION` or beyond on the line of fifths (F♯ major, G♯ minor and sharper) and the
  * key lies within `SHARP_REACH` fifths of the one in force: a piece in C♯ major names its mediant
@@ -401,7 +402,7 @@ export class FollowSpeller implements Speller {
    * modulation to the dominant or subdominant may pass through one with eight (G♯ major from C♯
    * minor); from there the name comes back within seven at the next key, and cannot walk further.
    * When the player declared the key, names are taken nearest the declared key instead, and from a
-   * remote declared key up to ten accidentals (see `DECLARED_MAX_SIGNATURE`).
+   * remote declared key up to ten accidentals (see `MAX_FAR_SIGNATURE`).
    */
   private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
     const base = mod(7 * tonicChroma, 12);
@@ -431,12 +432,12 @@ export class FollowSpeller implements Speller {
     this.regionTime = time;
   }
 
-  /** Whether a key past seven accidentals may be named (see `BEYOND_COST` and `DECLARED_MAX_SIGNATURE`). */
+  /** Whether a key past seven accidentals may be named (see `BEYOND_COST` and `MAX_FAR_SIGNATURE`). */
   private mayGoBeyond(key: Key, accidentals: number): boolean {
     if (this.guessing) return false;
     const declared = this.declaredCentre;
-    if (declared !== undefined && Math.abs(declared - this.homeCentre) >= REMOTE_KEY) return accidentals <= DECLARED_MAX_SIGNATURE;
-    if (this.region >= SHARP_REGION && signatureOf(key) > 0 && accidentals <= DECLARED_MAX_SIGNATURE && Math.abs(windowCentreOf(key) - windowCentreOf(this.current)) <= SHARP_REACH) return true;
+    if (declared !== undefined && Math.abs(declared - this.homeCentre) >= REMOTE_KEY) return accidentals <= MAX_FAR_SIGNATURE;
+    if (this.region >= SHARP_REGION && signatureOf(key) > 0 && accidentals <= MAX_FAR_SIGNATURE && Math.abs(windowCentreOf(key) - windowCentreOf(this.current)) <= SHARP_REACH) return true;
     return accidentals === MAX_SIGNATURE + 1 && Math.abs(key.tonic - this.current.tonic) <= 1;
   }
 
