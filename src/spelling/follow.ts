@@ -129,10 +129,10 @@ const MAX_FAR_SIGNATURE = 10;
 /**
  * When the key was declared, keys are named nearest it; when it is a remote key (its window
  * `REMOTE_KEY` fifths or more from home), names may go to `MAX_FAR_SIGNATURE` accidentals (D♯
- * major, the dominant of G♯ major, from a declared C♯ major), at `BEYOND_COST` per accidental past seven: a piece
- * declared in a remote key keeps its side of the circle through its modulations (E♯ minor from
- * D♯ minor, not F minor), while one declared in E♭ major that moves to E major is not read in
- * F♭ major.
+ * major, the dominant of G♯ major, from a declared C♯ major), at `BEYOND_COST` per accidental
+ * past seven: a piece declared in a remote key keeps its side of the circle through its
+ * modulations (E♯ minor from D♯ minor, not F minor), while one declared in E♭ major that moves to
+ * E major is not read in F♭ major.
  */
 const REMOTE_KEY = 4;
 /**
