@@ -1,9 +1,10 @@
 // The follow speller in every key: each movement of each corpus transposed by every semitone
-// (0…11), its written spellings moved by the same interval, named so that the piece's mean
-// position on the line of fifths stays within six fifths of D (keys from G♭/E♭ minor to F♯/D♯
-// minor). Prints, per corpus, the accuracy at each transposition, the weakest one and the accuracy
-// by the pieces' mean position, with no key given and with the key declared (from bench/run.ts, or
-// by hand: node dist/bench/every-key.js [corpus,...] ['{"param":value}'] [declared|undeclared]).
+// (0…11), its key named as follow names keys (within seven accidentals, nearest its naming centre)
+// and its written spellings moved by the same interval. Prints, per corpus, the accuracy at each
+// transposition, the weakest one (also with either enharmonic name of the whole piece accepted)
+// and the accuracy by key signature, with no key given and with the key declared (from
+// bench/run.ts, or by hand: node dist/bench/every-key.js [corpus,...] ['{"param":value}']
+// [declared|undeclared]).
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { DEFAULT_FOLLOW, FollowSpeller, signatureOf, windowCentreOf, type FollowParameters, type Key } from '../src/spelling/follow.js';
@@ -51,7 +52,7 @@ export function benchEveryKey(declared: boolean, only: readonly string[] = CORPO
     const written = movements.map((m) => parseWrittenSpellings(readFileSync(m.csvPath, 'utf8')));
     const starts = movements.map(startingKey);
     const figures: string[] = [];
-    const byMean = new Map<number, [number, number]>();
+    const bySignature = new Map<number, [number, number]>();
     let worst = { semitones: 0, value: 100 };
     let eitherWorst = 100;
     for (let semitones = 0; semitones < 12; semitones++) {
@@ -72,16 +73,16 @@ export function benchEveryKey(declared: boolean, only: readonly string[] = CORPO
         const o = scoreSpelling(spelled, t.otherName);
         eitherNotes += r.notes;
         eitherCorrect += Math.max(r.correct, o.correct);
-        const bin = signatureOf(key) + 1;
-        const b = byMean.get(bin) ?? [0, 0];
-        byMean.set(bin, [b[0] + r.correct, b[1] + r.notes]);
+        const signature = signatureOf(key) + 1;
+        const b = bySignature.get(signature) ?? [0, 0];
+        bySignature.set(signature, [b[0] + r.correct, b[1] + r.notes]);
       });
       const value = (100 * correct) / notes;
       if (value < worst.value) worst = { semitones, value };
       eitherWorst = Math.min(eitherWorst, (100 * eitherCorrect) / eitherNotes);
       figures.push(`+${semitones} ${pct(correct, notes)}`);
     }
-    const bins = [...byMean.entries()].sort((a, b) => a[0] - b[0]).map(([bin, [c, n]]) => `${bin}: ${pct(c, n)}`);
+    const bins = [...bySignature.entries()].sort((a, b) => a[0] - b[0]).map(([signature, [c, n]]) => `${signature}: ${pct(c, n)}`);
     process.stdout.write(
       `  ${name.padEnd(12)} worst +${worst.semitones} ${worst.value.toFixed(2)} (either name ${eitherWorst.toFixed(2)})   ${figures.join('  ')}\n    by key signature (sharps +, flats −): ${bins.join('  ')}\n`,
     );

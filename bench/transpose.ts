@@ -22,7 +22,7 @@ export interface Transposed {
 /**
  * `midi` and its `written` spellings moved up by `semitones`; the interval is `interval` fifths
  * when given (≡ 7 · semitones mod 12), or else named so that the piece's mean line-of-fifths
- * position lands nearest `CENTRE`; undefined if a key leaves 0…127.
+ * position lands nearest `CENTRE`; undefined if a note leaves 0…127.
  */
 export function transpose(
   midi: MidiFileContent,
@@ -41,7 +41,7 @@ export function transpose(
     const kind = status & 0xf0;
     if (kind !== 0x80 && kind !== 0x90) continue;
     const moved = key + semitones;
-    if (moved > 127) return undefined;
+    if (moved < 0 || moved > 127) return undefined;
     events.push({ ...e, data: [status, moved, e.data[2] ?? 0] });
   }
   const moved = (by: number): Transposed['written'] => {
