@@ -76,7 +76,7 @@ describe('diesis chart', () => {
     for (const n of chart.notes) expect(places(n.hz), n.name).toBeLessThanOrEqual(6);
     for (const i of chart.intervals) for (const v of [i.deviation, i.beats]) expect(places(v)).toBeLessThanOrEqual(4);
     const pythagorean = JSON.parse((await runCli('chart', 'pythagorean', '--ref', 'C4=100', '--json')).stdout) as JsonChart;
-    // 164025/1024 Hz = 160.1806640625 exactly, printed to the micro-hertz; exactHz keeps the fraction.
+    // Pythagorean G♯4 over C4 = 100 Hz is 3^8/2^12 = 6561/4096, 164025/1024 Hz = 160.1806640625 exactly (common practice, no source), printed to the micro-hertz; exactHz keeps the fraction.
     expect(pythagorean.notes.find((n) => n.name === 'G#4')).toMatchObject({ hz: 160.180664, exactHz: '164025/1024' });
   });
 
