@@ -11,13 +11,13 @@ import { DEFAULT_FOLLOW, FollowSpeller, signatureOf, windowCentreOf, type Follow
 import { mod } from '../src/util/errors.js';
 import { parseWrittenSpellings, scoreSpelling, spellEvents } from './accuracy.js';
 import { CORPORA, corpusDir, loadCorpus, type CorpusName, type Movement } from './corpus.js';
-import { transpose } from './transpose.js';
+import { transpose, type Transposed } from './transpose.js';
 
 /**
  * The key a player would declare for a piece: the key follow finds in its untransposed form after
  * its first 24 notes (a stand-in for the written key, which the corpora do not give).
  */
-function startingKey(m: Movement): Key {
+export function startingKey(m: Movement): Key {
   const speller = new FollowSpeller(DEFAULT_FOLLOW);
   const events = m.midi.events.filter((e) => ((e.data[0] ?? 0) & 0xf0) === 0x90 && (e.data[2] ?? 0) > 0).slice(0, 24);
   spellEvents(events, speller);
@@ -26,7 +26,7 @@ function startingKey(m: Movement): Key {
 }
 
 /** The key `start` moved up by `semitones`, named within seven accidentals nearest `centre` (as the follow speller names a key it finds). */
-function namedKey(start: Key, semitones: number, centre: number): Key {
+export function namedKey(start: Key, semitones: number, centre: number = DEFAULT_FOLLOW.namingCentre): Key {
   const base = start.tonic + mod(7 * semitones, 12);
   let best: Key | undefined;
   for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
@@ -35,6 +35,22 @@ function namedKey(start: Key, semitones: number, centre: number): Key {
     if (best === undefined || Math.abs(windowCentreOf(key) - centre) < Math.abs(windowCentreOf(best) - centre)) best = key;
   }
   return best!;
+}
+
+/**
+ * A movement moved so that its starting key, named as `namedKey` names it, has `signature` sharps
+ * (+) or flats (−), with that key; undefined where no transposition names it so (A♯ minor is named
+ * B♭ minor) or a note would leave 0…127.
+ */
+export function movedToSignature(m: Movement, written: ReadonlyArray<{ tick: number; key: number; spelling: string }>, signature: number): { moved: Transposed; key: Key } | undefined {
+  const start = startingKey(m);
+  for (let semitones = 0; semitones < 12; semitones++) {
+    const key = namedKey(start, semitones);
+    if (signatureOf(key) + 1 !== signature) continue;
+    const moved = transpose(m.midi, written, semitones, key.tonic - start.tonic) ?? transpose(m.midi, written, semitones - 12, key.tonic - start.tonic);
+    return moved && { moved, key };
+  }
+  return undefined;
 }
 
 const pct = (c: number, n: number): string => ((100 * c) / n).toFixed(2);

@@ -46,7 +46,8 @@ export interface FollowParameters {
    * Where a key with two names (C♯ or D♭ major) is named when nothing heard before decides it, as
    * a position on the line of fifths: the name whose window centre is nearer wins. 4 gives the names
    * of Baroque keyboard music (C♯ and F♯ major, C♯, D♯ and G♯ minor, but A♭ major and B♭ minor);
-   * 0 gives D♭ and G♭ major and E♭ minor. Once a key is known, a new key takes the name nearer it.
+   * 0 gives D♭ and G♭ major and E♭ minor. Once a key is known, a new key takes the name nearer it;
+   * with no key declared, the piece's home key keeps its name from here (see `HOME_NOTES`).
    */
   readonly namingCentre: number;
   /**
@@ -120,10 +121,14 @@ const GUESS: Key = { tonic: 0, mode: 'major' };
 const MAX_SIGNATURE = 7;
 /**
  * A modulation to the dominant or subdominant may pass through a key of eight accidentals (G♯ major,
- * the dominant of C♯ major or minor; F♭ major, the subdominant of C♭ major); each accidental past
- * seven costs one fifth of distance in naming. Further keys only as below.
+ * the dominant of C♯ major or minor; F♭ major, the subdominant of C♭ major), and on the sharp side
+ * one to a key up to two fifths away through nine (D♯ major, V of V in C♯ major; G♯ major from F♯
+ * major): each accidental past seven costs one fifth of distance in naming. Further keys only as
+ * below.
  */
 const BEYOND_COST = 1;
+const NEAR_SHARP_REACH = 2;
+const NEAR_SHARP_MOST = 9;
 /** The most accidentals a key named past seven may have (D♯ major, nine; A♯ major, ten). */
 const MAX_FAR_SIGNATURE = 10;
 /**
@@ -148,6 +153,21 @@ const REMOTE_KEY = 4;
 const SHARP_REGION = 8;
 const SHARP_REACH = 4;
 const REGION_HALF_LIFE_MS = 60_000;
+
+/**
+ * With no key declared, the piece's home key is the key that has been in force for the most notes,
+ * the n-th note heard counting 1 / (1 + n / `HOME_NOTES`): a piece states its key first, so the
+ * opening outweighs a long second half in the dominant. When the home key's name, as the keys have
+ * been named so far, is not its name from the naming centre (D♭ major where the naming centre
+ * says C♯ major, because the piece was first heard in E♯ minor and that was named F minor), every
+ * key from then on is named 12 fifths the other way, which renames the home key. Not when the key
+ * in force would then pass seven accidentals, nor when the home key is named with eight
+ * accidentals and the key a fifth below it, of which it is likely the dominant, has been in force
+ * for `DOMINANT_SHARE` of its notes or more (G♯ major in a C♯ major piece stays G♯, not A♭).
+ * Measured on the corpora moved to every key (bench/every-key.ts).
+ */
+const HOME_NOTES = 10;
+const DOMINANT_SHARE = 0.3;
 
 /** The flattest fifth of a key's diatonic set: major's tonic less one fifth, minor's less four (as keySignatureOf). */
 export function signatureOf(key: Key): number {
@@ -209,6 +229,9 @@ export class FollowSpeller implements Speller {
   /** The keys of the group spelled last and when it began: the approach of the next notes. */
   private lastKeys: number[] = [];
   private lastOnset = -Infinity;
+  /** Notes heard since the start (or the last key declared), and per key (chroma, +12 if minor) its share of them while it was in force (see `HOME_NOTES`). */
+  private notesHeard = 0;
+  private readonly homeCounts = new Float64Array(24);
   /** Per chroma: +1 when it last moved up a semitone to the next note, −1 down; and when. */
   private readonly resolvedDir = new Float64Array(12);
   private readonly resolvedT = new Float64Array(12).fill(-Infinity);
@@ -234,6 +257,8 @@ export class FollowSpeller implements Speller {
     this.resolvedT.fill(-Infinity);
     this.softCentre = NaN;
     this.region = NaN;
+    this.notesHeard = 0;
+    this.homeCounts.fill(0);
   }
 
   /**
@@ -438,7 +463,51 @@ export class FollowSpeller implements Speller {
     const declared = this.declaredCentre;
     if (declared !== undefined && Math.abs(declared - this.homeCentre) >= REMOTE_KEY) return accidentals <= MAX_FAR_SIGNATURE;
     if (this.region >= SHARP_REGION && signatureOf(key) > 0 && accidentals <= MAX_FAR_SIGNATURE && Math.abs(windowCentreOf(key) - windowCentreOf(this.current)) <= SHARP_REACH) return true;
-    return accidentals === MAX_SIGNATURE + 1 && Math.abs(key.tonic - this.current.tonic) <= 1;
+    const reach = Math.abs(key.tonic - this.current.tonic);
+    if (signatureOf(key) > 0) return accidentals <= NEAR_SHARP_MOST && reach <= NEAR_SHARP_REACH;
+    return accidentals === MAX_SIGNATURE + 1 && reach <= 1;
+  }
+
+  /** Counts `count` new notes for the key in force (see `HOME_NOTES`). */
+  private countHome(count: number): void {
+    this.notesHeard += count;
+    if (this.guessing) return;
+    this.homeCounts[chromaAt(this.current.tonic) + (this.current.mode === 'minor' ? 12 : 0)]! += count / (1 + this.notesHeard / HOME_NOTES);
+  }
+
+  /** Renames every key 12 fifths the other way if the home key is misnamed (see `HOME_NOTES`). */
+  private reframe(): void {
+    if (this.guessing || this.declaredCentre !== undefined) return;
+    let home = 0;
+    for (let i = 1; i < 24; i++) if (this.homeCounts[i]! > this.homeCounts[home]!) home = i;
+    const mode = home < 12 ? 'major' : 'minor';
+    const named = this.spelledKey(home % 12, mode);
+    const shift = this.namedFromCentre(named) - named.tonic;
+    if (shift === 0) return;
+    if (Math.abs(signatureOf({ tonic: this.current.tonic + shift, mode: this.current.mode }) + 1) > MAX_SIGNATURE) return;
+    if (Math.abs(signatureOf(named) + 1) === MAX_SIGNATURE + 1) {
+      const below = chromaAt(named.tonic - 1);
+      if (Math.max(this.homeCounts[below]!, this.homeCounts[below + 12]!) >= DOMINANT_SHARE * this.homeCounts[home]!) return;
+    }
+    this.current = { tonic: this.current.tonic + shift, mode: this.current.mode };
+    for (let c = 0; c < 12; c++) this.chromaF[c]! += shift;
+    this.softCentre += shift;
+    this.region += shift;
+  }
+
+  /** The tonic of `key`'s name within seven accidentals nearest the naming centre. */
+  private namedFromCentre(key: Key): number {
+    let best = key.tonic;
+    let bestDistance = Infinity;
+    for (let tonic = key.tonic - 24; tonic <= key.tonic + 24; tonic += 12) {
+      const other: Key = { tonic, mode: key.mode };
+      const distance = Math.abs(windowCentreOf(other) - this.p.namingCentre);
+      if (Math.abs(signatureOf(other) + 1) <= MAX_SIGNATURE && distance < bestDistance) {
+        best = tonic;
+        bestDistance = distance;
+      }
+    }
+    return best;
   }
 
   /** The key the speller believes it is in. */
@@ -467,7 +536,9 @@ export class FollowSpeller implements Speller {
         this.shortWeights[mod(n.key, 12)]! += 1;
       }
       this.heard += notes.length;
+      this.countHome(notes.length);
       this.update();
+      this.reframe();
       this.followRegion(notes[0]!.time);
     }
     // The whole group counts before any of it is spelled, and it is spelled as one chord.

@@ -58,6 +58,18 @@ describe('follow: spelling from the harmony heard', () => {
     expect(play(speller, [['F3', 'A3', 'C4']])[0]).toEqual(['F3', 'A3', 'C4']);
   });
 
+  it('renames the keys once a piece first heard in its mediant has shown its home key, C♯ major', () => {
+    // Our own piece: iii–vi–iii (E♯ minor, named F minor: E♯ minor would take eight sharps), then
+    // ii–V–I–IV–V7–I in C♯ major five times. C♯ major is named from the naming centre (common
+    // practice of keyboard music in the sharpest keys, no source), and the keys named so far are
+    // renamed with it: the last cadence is spelled in sharps, not in D♭ major.
+    const opening = [['E#3', 'G#3', 'B#3', 'E#4'], ['A#2', 'A#3', 'C#4', 'E#4'], ['E#3', 'G#3', 'B#3', 'G#4']];
+    const cadence = [['D#3', 'F#3', 'A#3', 'D#4'], ['G#2', 'B#3', 'D#4', 'G#4'], ['C#3', 'E#3', 'G#3', 'C#4'], ['F#3', 'A#3', 'C#4', 'F#4'], ['G#2', 'B#3', 'F#4', 'D#4'], ['C#3', 'E#3', 'G#3', 'C#4']];
+    const out = play(follow(), [...opening, ...cadence, ...cadence, ...cadence, ...cadence, ...cadence]);
+    expect(out[0]).toEqual(['F3', 'Ab3', 'C4', 'F4']);
+    expect(out.slice(-6)).toEqual(cadence);
+  });
+
   it('spells a chromatic lower neighbour reached by a falling semitone as the raised letter below', () => {
     // Our own phrase in C major: a tune that dips from E to the note below and back (E–D♯–E), the
     // way a chromatic neighbour is written (common practice, no source); the same key reached by a
