@@ -5,6 +5,7 @@ import { writeWav } from '../audio/wav.js';
 import { progressBar } from './progress.js';
 import { renderEvents, type RenderSummary } from '../render/render-midi.js';
 import { readMidiFile, writeMidiFile } from '../render/smf.js';
+import { fileGather } from '../router/chord-gatherer.js';
 import { createEngine, OUTPUT_MODES, type EngineOptions } from '../router/setup.js';
 import { formatChannels } from '../text/channels.js';
 import { formatReference } from '../tuning/index.js';
@@ -64,7 +65,7 @@ export function registerRender(program: Command, io: CommandIo): void {
     }
     const resolved = resolveEngineCli(cli);
     const { preset, options, sampleSet, spellingLabel, speller } = resolved;
-    const engine = createEngine({ ...options, gather: options.gather ?? 'same-time' }); // in a file, equal onsets are a chord
+    const engine = createEngine({ ...options, gather: fileGather(options.gather) });
     // Every output is checked before the work and written only when all of it has succeeded.
     const summary = runWithOutputs([input, ...engineInputFiles(resolved)], (outputs) => {
       if (cli.output) outputs.claim('-o', cli.output, 'midi');

@@ -3,6 +3,7 @@ import { formatSpelledPitch } from '../pitch/index.js';
 import { renderEvents } from '../render/render-midi.js';
 import { readMidiFile } from '../render/smf.js';
 import { SpellReport } from '../render/spell-report.js';
+import { fileGather } from '../router/chord-gatherer.js';
 import { createEngine } from '../router/setup.js';
 import { channelOf, keyOfNote, sourceOf } from '../midi/note-id.js';
 import { DEFAULT_WOLF_LIMITS } from '../tuning/index.js';
@@ -35,7 +36,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
     const report = new SpellReport(DEFAULT_WOLF_LIMITS);
     const engine = createEngine({
       ...options,
-      gather: options.gather ?? 'same-time',
+      gather: fileGather(options.gather),
       observer: (e) => {
         if (e.type === 'note') {
           const m = matchOf(speller, sourceOf(e.id), channelOf(e.id), keyOfNote(e.id));

@@ -7,6 +7,15 @@ import type { NoteId } from '../midi/note-id.js';
  */
 export type GatherSetting = number | 'same-time';
 
+/**
+ * The gathering of a file: its equal onsets are always a chord, so no setting (or 0, the live
+ * default) means `'same-time'`; a window of `ms` > 0 also gathers notes up to that far apart, as
+ * live, and a chord then sounds when its window is up.
+ */
+export function fileGather(ms: GatherSetting | undefined): GatherSetting {
+  return ms === undefined || ms === 0 ? 'same-time' : ms;
+}
+
 export interface PendingNote {
   readonly id: NoteId;
   readonly velocity: number;

@@ -120,20 +120,24 @@ const GUESS: Key = { tonic: 0, mode: 'major' };
 /** Keys are written with at most seven sharps or flats: signatures −7…+7 (C♭ major … C♯ major). */
 const MAX_SIGNATURE = 7;
 /**
- * A modulation to the dominant or subdominant may pass through a key of eight accidentals (G♯ major,
- * the dominant of C♯ major or minor; F♭ major, the subdominant of C♭ major), and on the sharp side
- * one to a key up to two fifths away through nine (D♯ major, V of V in C♯ major; G♯ major from F♯
- * major): each accidental past seven costs one fifth of distance in naming. Further keys only as
- * below.
+ * Past seven accidentals, each accidental costs one fifth of distance in naming. On the sharp side a
+ * key up to two fifths from the one in force may take up to nine sharps (G♯ major, the dominant of
+ * C♯ major, and from there D♯ major; G♯ major from F♯ major); on the flat side a key whose window
+ * lies within four fifths of the key in force's may take eight flats if it is minor (D♭ minor,
+ * the minor subdominant of A♭ major, also from F minor), and any key with eight accidentals one
+ * fifth from the key in force (F♭ major from C♭ major). Further keys only as below.
  */
 const BEYOND_COST = 1;
+const EIGHTH_REACH = 4;
 const NEAR_SHARP_REACH = 2;
 const NEAR_SHARP_MOST = 9;
 /** The most accidentals a key named past seven may have (D♯ major, nine; A♯ major, ten). */
 const MAX_FAR_SIGNATURE = 10;
+/** The same from a remote declared key: E♯ major, eleven sharps, is the dominant of A♯ minor. */
+const MAX_DECLARED_SIGNATURE = 11;
 /**
  * When the key was declared, keys are named nearest it; when it is a remote key (its window
- * `REMOTE_KEY` fifths or more from home), names may go to `MAX_FAR_SIGNATURE` accidentals (D♯
+ * `REMOTE_KEY` fifths or more from home), names may go to `MAX_DECLARED_SIGNATURE` accidentals (D♯
  * major, the dominant of G♯ major, from a declared C♯ major), at `BEYOND_COST` per accidental
  * past seven: a piece declared in a remote key keeps its side of the circle through its
  * modulations (E♯ minor from D♯ minor, not F minor), while one declared in E♭ major that moves to
@@ -427,7 +431,7 @@ export class FollowSpeller implements Speller {
    * modulation to the dominant or subdominant may pass through one with eight (G♯ major from C♯
    * minor); from there the name comes back within seven at the next key, and cannot walk further.
    * When the player declared the key, names are taken nearest the declared key instead, and from a
-   * remote declared key up to ten accidentals (see `MAX_FAR_SIGNATURE`).
+   * remote declared key up to eleven accidentals (see `MAX_DECLARED_SIGNATURE`).
    */
   private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
     const base = mod(7 * tonicChroma, 12);
@@ -457,15 +461,16 @@ export class FollowSpeller implements Speller {
     this.regionTime = time;
   }
 
-  /** Whether a key past seven accidentals may be named (see `BEYOND_COST` and `MAX_FAR_SIGNATURE`). */
+  /** Whether a key past seven accidentals may be named (see `BEYOND_COST`, `MAX_FAR_SIGNATURE`, `MAX_DECLARED_SIGNATURE`). */
   private mayGoBeyond(key: Key, accidentals: number): boolean {
     if (this.guessing) return false;
     const declared = this.declaredCentre;
-    if (declared !== undefined && Math.abs(declared - this.homeCentre) >= REMOTE_KEY) return accidentals <= MAX_FAR_SIGNATURE;
+    if (declared !== undefined && Math.abs(declared - this.homeCentre) >= REMOTE_KEY) return accidentals <= MAX_DECLARED_SIGNATURE;
     if (this.region >= SHARP_REGION && signatureOf(key) > 0 && accidentals <= MAX_FAR_SIGNATURE && Math.abs(windowCentreOf(key) - windowCentreOf(this.current)) <= SHARP_REACH) return true;
-    const reach = Math.abs(key.tonic - this.current.tonic);
-    if (signatureOf(key) > 0) return accidentals <= NEAR_SHARP_MOST && reach <= NEAR_SHARP_REACH;
-    return accidentals === MAX_SIGNATURE + 1 && reach <= 1;
+    if (signatureOf(key) > 0) return accidentals <= NEAR_SHARP_MOST && Math.abs(key.tonic - this.current.tonic) <= NEAR_SHARP_REACH;
+    if (accidentals !== MAX_SIGNATURE + 1) return false;
+    if (Math.abs(key.tonic - this.current.tonic) <= 1) return true;
+    return key.mode === 'minor' && Math.abs(windowCentreOf(key) - windowCentreOf(this.current)) <= EIGHTH_REACH;
   }
 
   /** Counts `count` new notes for the key in force (see `HOME_NOTES`). */

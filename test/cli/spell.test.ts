@@ -107,4 +107,26 @@ describe('--gather applies to files as it does live', () => {
     expect(await last('--gather', '30')).toEqual(['F3', 'Ab3', 'C4']);
     expect(await last()).toEqual(['F3', 'G#3', 'C4']);
   });
+
+  it('notes with equal onsets in a file are a chord with --gather 0 too (the live default, as setups write it)', async () => {
+    const { writeMidiFile } = await import('../../src/render/smf.js');
+    const { writeFileSync } = await import('node:fs');
+    const { tempDir } = await import('../support/temp.js');
+    // Our own phrase: A minor, its dominant, A minor, then an F minor triad struck at once.
+    const events: Array<{ tick: number; data: number[] }> = [];
+    let tick = 0;
+    for (const keys of [[57, 60, 64], [52, 56, 59, 62], [57, 60, 64], [53, 56, 60]]) {
+      keys.forEach((k) => events.push({ tick, data: [0x90, k, 80] }));
+      keys.forEach((k) => events.push({ tick: tick + 470, data: [0x80, k, 0] }));
+      tick += 480;
+    }
+    events.sort((a, b) => a.tick - b.tick);
+    const file = join(tempDir('diesis-gather0-'), 'struck.mid');
+    writeFileSync(file, writeMidiFile({ ticksPerBeat: 480 }, [], [events]));
+    const last = async (...args: string[]): Promise<string[]> =>
+      (await runCli('spell', file, '--json', ...args)).stdout.trim().split('\n').slice(-3).map((l) => (JSON.parse(l) as Row).spelling);
+    // An F minor triad is F–A♭–C (common practice, no source), whatever --gather says.
+    expect(await last()).toEqual(['F3', 'Ab3', 'C4']);
+    expect(await last('--gather', '0')).toEqual(['F3', 'Ab3', 'C4']);
+  });
 });

@@ -70,6 +70,39 @@ describe('follow: spelling from the harmony heard', () => {
     expect(out.slice(-6)).toEqual(cadence);
   });
 
+  it('keeps A♭ major through its minor subdominant and flat submediant: D♭ minor and F♭ major, not C♯ minor and E major', () => {
+    // Our own phrase in A♭ major: I–IV–iv–I–♭VI–V7–I, the mixture chords written in flats (common
+    // practice, no source). Without the flat keys past seven (D♭ minor has eight flats) the minor
+    // subdominant was read as C♯ minor and the phrase went on in G♯ major.
+    const phrase = [
+      ['Ab2', 'C4', 'Eb4', 'Ab4'],
+      ['Db3', 'F4', 'Ab4', 'Db5'],
+      ['Db3', 'Fb4', 'Ab4', 'Cb5'],
+      ['Fb5'],
+      ['Ab2', 'C4', 'Eb4', 'Eb5'],
+      ['Fb3', 'Ab3', 'Cb4', 'Fb4'],
+      ['Eb3', 'G3', 'Bb3', 'Db4'],
+      ['Ab2', 'C4', 'Eb4', 'Ab4'],
+    ];
+    expect(play(follow(), phrase)).toEqual(phrase);
+  });
+
+  it('keeps a declared A♯ minor through its dominant, E♯ major with eleven sharps: G𝄪, not A', () => {
+    // Our own phrase in A♯ minor: i–iv–V7, the dominant spun out, V–i, twice; the leading tone G𝄪
+    // (common practice, no source).
+    const speller = follow();
+    speller.setKey(parseKey('A# minor'));
+    const phrase = [
+      ['A#2', 'C#4', 'E#4', 'A#4'],
+      ['D#3', 'F#4', 'A#4', 'D#5'],
+      ['E#3', 'G##3', 'B#3', 'D#4'],
+      ['B#4'], ['G##4'], ['E#4'], ['G##4'], ['B#4'], ['D#5'],
+      ['E#3', 'G##3', 'B#3', 'E#4'],
+      ['A#2', 'C#4', 'E#4', 'A#4'],
+    ];
+    expect(play(speller, [...phrase, ...phrase])).toEqual([...phrase, ...phrase]);
+  });
+
   it('spells a chromatic lower neighbour reached by a falling semitone as the raised letter below', () => {
     // Our own phrase in C major: a tune that dips from E to the note below and back (E–D♯–E), the
     // way a chromatic neighbour is written (common practice, no source); the same key reached by a
