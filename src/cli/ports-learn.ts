@@ -4,6 +4,7 @@ import { createInterface } from 'node:readline/promises';
 import type { Command } from 'commander';
 import { enableMidi } from '../io/midi-system.js';
 import { listenToInputs } from '../live/listen.js';
+import { EXIT_CODES } from '../live/run.js';
 import { describeGesture, GestureTracker, type Gesture } from '../midi/gesture.js';
 import { describeMessage } from '../midi/heard.js';
 import { addControlText, compactJson, controlOf, latchApplies, newSetupText, type LearnedAction } from '../presets/learned-control.js';
@@ -64,19 +65,23 @@ export function terminalAsker(io: CommandIo): Asker | undefined {
   };
 }
 
-export async function runListenCommand(cli: ListenCli, io: CommandIo, ask: Asker | undefined = terminalAsker(io)): Promise<void> {
+/**
+ * Runs `ports --watch` or `--learn`; resolves to the exit code: for --watch, as for `play` (0 after
+ * q or --stop-after, 130, 143 or 129 after a signal; `EXIT_CODES` in src/live/run.ts).
+ */
+export async function runListenCommand(cli: ListenCli, io: CommandIo, ask: Asker | undefined = terminalAsker(io)): Promise<number> {
   if (cli.watch && cli.learn) throw new UserError('ports: --watch and --learn cannot both be given', 2);
   const learnOnly = (['into', 'saveAs', 'action', 'key', 'latch', 'force'] as const).find((o) => cli[o] !== undefined);
   if (cli.watch) {
     if (learnOnly) throw new UserError(`ports --watch: --${learnOnly === 'saveAs' ? 'save-as' : learnOnly} belongs to --learn`, 2);
-    await watch(cli, io);
-    return;
+    return watch(cli, io);
   }
   await learn(cli, io, ask);
+  return EXIT_CODES.quit;
 }
 
-/** Why listening ended: a gesture (learn), the player (q, Ctrl-C), or the time. */
-type Ending = { readonly kind: 'gesture'; readonly gesture: Gesture; readonly input: string } | { readonly kind: 'stopped'; readonly why: string };
+/** Why listening ended: a gesture (learn), or the player (q, Ctrl-C), a signal or the time, with the exit code that stop means. */
+type Ending = { readonly kind: 'gesture'; readonly gesture: Gesture; readonly input: string } | { readonly kind: 'stopped'; readonly why: string; readonly code: number };
 
 /** Listens until `onGesture` says done, the player stops, or `--stop-after` passes. */
 async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise<Ending> {
@@ -121,12 +126,12 @@ async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise
     const quit = process.stdin.isTTY ? 'q or Ctrl-C' : 'Ctrl-C';
     io.stdout.write(watching ? `listening to ${names}: press pedals, keys and buttons to see what they send; ${quit} ends\n` : `listening to ${names}: press the pedal (and let it go), the key switch or the button for ${cli.action ?? 'the control'}; ${quit} gives up\n`);
     for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
-      const handler = (): void => end({ kind: 'stopped', why: signal === 'SIGINT' ? 'stopped by Ctrl-C' : `stopped by ${signal}` });
+      const handler = (): void => end({ kind: 'stopped', why: signal === 'SIGINT' ? 'stopped by Ctrl-C' : `stopped by ${signal}`, code: EXIT_CODES[signal] });
       process.once(signal, handler);
       cleanups.push(() => process.removeListener(signal, handler));
     }
     if (cli.stopAfter !== undefined) {
-      const timer = setTimeout(() => end({ kind: 'stopped', why: `nothing was heard in ${cli.stopAfter} s` }), cli.stopAfter * 1000);
+      const timer = setTimeout(() => end({ kind: 'stopped', why: `nothing was heard in ${cli.stopAfter} s`, code: EXIT_CODES.quit }), cli.stopAfter * 1000);
       cleanups.push(() => clearTimeout(timer));
     }
     const stdin = process.stdin;
@@ -135,7 +140,8 @@ async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise
       stdin.resume();
       const key = (data: Buffer): void => {
         const text = data.toString();
-        if (text === 'q' || text === '\u0003') end({ kind: 'stopped', why: 'the player stopped' });
+        if (text === 'q') end({ kind: 'stopped', why: 'the player stopped', code: EXIT_CODES.quit });
+        else if (text === '\u0003') end({ kind: 'stopped', why: 'stopped by Ctrl-C', code: EXIT_CODES.SIGINT }); // Ctrl-C while the terminal is raw
       };
       stdin.on('data', key);
       cleanups.push(() => {
@@ -147,8 +153,10 @@ async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise
   });
 }
 
-async function watch(cli: ListenCli, io: CommandIo): Promise<void> {
-  await listen(cli, io, true);
+/** Watches until the player or the time stops it (listening never ends on a gesture here). */
+async function watch(cli: ListenCli, io: CommandIo): Promise<number> {
+  const ending = await listen(cli, io, true);
+  return ending.kind === 'stopped' ? ending.code : EXIT_CODES.quit;
 }
 
 /** The action asked for, checked before anything is heard (a mistake costs no pedal presses). */
