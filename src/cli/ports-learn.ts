@@ -13,7 +13,7 @@ import { checkSetup } from '../presets/setup-file.js';
 import { ACTION_NAMES, ACTIONS, type ActionName } from '../spelling/control-map.js';
 import { parseKey } from '../spelling/keys.js';
 import { UserError } from '../util/errors.js';
-import { readTextFile, writeAgreedText } from '../util/files.js';
+import { kindOfName, readTextFile, writeAgreedText } from '../util/files.js';
 import type { CommandIo } from '../util/io.js';
 import { numberOption } from './options.js';
 
@@ -73,12 +73,15 @@ export async function runListenCommand(cli: ListenCli, io: CommandIo, ask: Asker
   if (cli.watch && cli.learn) throw new UserError('ports: --watch and --learn cannot both be given', 2);
   const learnOnly = (['into', 'saveAs', 'action', 'key', 'latch', 'force'] as const).find((o) => cli[o] !== undefined);
   if (cli.watch) {
-    if (learnOnly) throw new UserError(`ports --watch: --${learnOnly === 'saveAs' ? 'save-as' : learnOnly} belongs to --learn`, 2);
+    if (learnOnly) throw new UserError(`ports --watch: ${flagOf(learnOnly)} belongs to --learn`, 2);
     return watch(cli, io);
   }
   await learn(cli, io, ask);
   return EXIT_CODES.quit;
 }
+
+/** An option as it is written on the command line: saveAs → --save-as. */
+const flagOf = (name: string): string => `--${name.replace(/[A-Z]/gu, (c) => `-${c.toLowerCase()}`)}`;
 
 /** Why listening ended: a gesture (learn), or the player (q, Ctrl-C), a signal or the time, with the exit code that stop means. */
 type Ending = { readonly kind: 'gesture'; readonly gesture: Gesture; readonly input: string } | { readonly kind: 'stopped'; readonly why: string; readonly code: number };
@@ -186,6 +189,13 @@ function targetOf(cli: ListenCli, ask: Asker | undefined): Target | undefined {
     if (cli.force) throw new UserError('--force goes with --into SETUP', 2);
     return undefined;
   }
+  const file = cli.saveAs ?? cli.into;
+  const ext = extname(file).toLowerCase();
+  const other = ext === '.json' ? undefined : kindOfName(file);
+  if (other) {
+    const option = cli.saveAs !== undefined ? '--save-as' : '--into';
+    throw new UserError(`${option} ${file}: a "${ext}" name is for ${other}, but ${option} writes a setup (.json); give a name ending in .json`, 2);
+  }
   const exists = existsSync(cli.into);
   if (cli.saveAs !== undefined && !exists) throw new UserError(`--into ${cli.into}: no such file to copy (without --save-as, --into makes it)`);
   const base = exists ? readTextFile(cli.into) : undefined;
@@ -196,7 +206,6 @@ function targetOf(cli: ListenCli, ask: Asker | undefined): Target | undefined {
       throw new UserError(`${cli.into}: has ${errors.length} problem${errors.length === 1 ? '' : 's'} already (${formatProblem(cli.into, errors[0]!, before.source)}); fix ${errors.length === 1 ? 'it' : 'them'} first ("diesis check ${cli.into}")`);
     }
   }
-  const file = cli.saveAs ?? cli.into;
   const replace = existsSync(file);
   if (replace && !cli.force && !ask) {
     throw new UserError(`${file}: exists, and it is your setup: diesis changes it only when you say so: add --force (your comments and layout stay), or --save-as NEW.json to write a copy with the new control`, 2);
@@ -205,7 +214,7 @@ function targetOf(cli: ListenCli, ask: Asker | undefined): Target | undefined {
 }
 
 async function learn(cli: ListenCli, io: CommandIo, ask: Asker | undefined): Promise<void> {
-  if (!cli.learn) throw new UserError('ports: --in and the learning options go with --watch or --learn', 2);
+  if (!cli.learn) throw new UserError(`ports: ${flagOf(Object.keys(cli)[0] ?? 'in')} goes with --watch or --learn`, 2);
   if (cli.action === undefined && !ask) throw new UserError('ports --learn: give --action (one of ' + ACTION_NAMES.join(', ') + '); on a terminal diesis asks', 2);
   let action = cli.action === undefined ? undefined : actionFrom(cli.action, cli);
   const target = targetOf(cli, ask);
