@@ -4,6 +4,7 @@ import { z } from 'zod';
 import { alterationOf, chromaOf, formatPitchClass, formatSpelledPitch, keyOf, letterOf, onKey, parseSpelledPitch, rangeClasses, type FifthsRange, type PitchClass } from '../pitch/index.js';
 import { formatReference, frequency, parseReference, type Reference, type Tuning } from '../tuning/index.js';
 import { jsonPath } from '../presets/problems.js';
+import { outputNumber, RECORDED_HZ_DIGITS, roundSignificant } from '../text/output-numbers.js';
 import { UserError } from '../util/errors.js';
 import { isWithin, listFolder, readInputFile, READ_LIMITS, readTextFile, writeFolder } from '../util/files.js';
 import { resample } from './resample.js';
@@ -219,7 +220,9 @@ export function buildSampleSet(request: SampleSetRequest, outDir: string, onProg
       const out: Audio = { sampleRate: audio.sampleRate, channels: audio.channels.map((c) => resample(c, ratio)), loop, rootKey: plan.key };
       const name = `${fileStem(plan.pitch, plan.pitch.octave)}.wav`;
       put(name, writeWav(out, 24));
-      files.push({ file: name, spelling: formatSpelledPitch(plan.pitch), key: plan.key, channel: plan.channel + 1, hz: plan.hz, source: basename(plan.source.file), shiftCents: plan.shift * 100 });
+      // Rounded as written (the manifest is read back and checked to 0.01 cent: see RECORDED_HZ_DIGITS).
+      const hz = roundSignificant(plan.hz, RECORDED_HZ_DIGITS);
+      files.push({ file: name, spelling: formatSpelledPitch(plan.pitch), key: plan.key, channel: plan.channel + 1, hz, source: basename(plan.source.file), shiftCents: outputNumber(plan.shift * 100, 'cents') });
       onProgress?.((i + 1) / plans.length);
     });
     manifest = {

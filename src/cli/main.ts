@@ -13,6 +13,15 @@ import { registerSynthCheck } from './synth-check-command.js';
 
 const VERSION = '0.1.0';
 
+/** A commander error as one line: "error: " dropped, a suggestion on the same line in diesis's words ("…: did you mean chart?"). */
+function oneLine(message: string): string {
+  return message
+    .replace(/^error: /u, '')
+    .trim()
+    .replace(/\s*\n\(Did you mean (.*)\)$/u, ': did you mean $1')
+    .replace(/\s*\n\s*/gu, ' ');
+}
+
 export function buildProgram(io: CommandIo, end: CommandEnd = { code: 0 }): Command {
   const program = new Command('diesis')
     .description('spell each key the way the music means it and sound it in tune: meantone, Pythagorean, just and well temperaments over MIDI')
@@ -21,7 +30,7 @@ export function buildProgram(io: CommandIo, end: CommandEnd = { code: 0 }): Comm
     .configureOutput({
       writeOut: (s) => io.stdout.write(s),
       writeErr: (s) => io.stderr.write(s),
-      outputError: (s, write) => write(`diesis: ${s.replace(/^error: /u, '').trim()}\n`),
+      outputError: (s, write) => write(`diesis: ${oneLine(s)}\n`),
     });
   registerChart(program, io);
   registerPresetCommands(program, io);
@@ -39,8 +48,12 @@ export function buildProgram(io: CommandIo, end: CommandEnd = { code: 0 }): Comm
 export async function main(argv: readonly string[], io: CommandIo = { stdout: process.stdout, stderr: process.stderr }): Promise<number> {
   const end: CommandEnd = { code: 0 };
   const program = buildProgram(io, end);
+  // `diesis help NAME` when there is no command NAME: commander would print the whole help as the
+  // error; asking for NAME itself gives the one line (and suggestion) of any unknown command instead.
+  const [node = 'node', script = 'diesis', first, second] = argv;
+  const noSuchHelp = first === 'help' && second !== undefined && !second.startsWith('-') && !program.commands.some((c) => c.name() === second);
   try {
-    await program.parseAsync([...argv]);
+    await program.parseAsync(noSuchHelp ? [node, script, second] : [...argv]);
     return end.code;
   } catch (error) {
     if (error instanceof CommanderError) return error.exitCode === 1 ? 2 : error.exitCode;

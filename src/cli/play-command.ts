@@ -104,7 +104,10 @@ export function registerPlay(program: Command, io: CommandIo, end: CommandEnd): 
     .command('ports')
     .description('list the MIDI inputs and outputs; --watch shows what a pedal or key sends, --learn binds it in a setup')
     .action(async (cli: ListenCli) => {
-      if (Object.keys(cli).length > 0) return runListenCommand(cli, io); // --watch, --learn (src/cli/ports-learn.ts)
+      if (Object.keys(cli).length > 0) {
+        end.code = await runListenCommand(cli, io); // --watch, --learn (src/cli/ports-learn.ts)
+        return;
+      }
       await enableMidi();
       const { inputs, outputs } = listPorts();
       const note = midiSystemNote();

@@ -4,6 +4,7 @@ import { createInterface } from 'node:readline/promises';
 import type { Command } from 'commander';
 import { enableMidi } from '../io/midi-system.js';
 import { listenToInputs } from '../live/listen.js';
+import { EXIT_CODES } from '../live/run.js';
 import { describeGesture, GestureTracker, type Gesture } from '../midi/gesture.js';
 import { describeMessage } from '../midi/heard.js';
 import { addControlText, compactJson, controlOf, latchApplies, newSetupText, type LearnedAction } from '../presets/learned-control.js';
@@ -12,7 +13,7 @@ import { checkSetup } from '../presets/setup-file.js';
 import { ACTION_NAMES, ACTIONS, type ActionName } from '../spelling/control-map.js';
 import { parseKey } from '../spelling/keys.js';
 import { UserError } from '../util/errors.js';
-import { readTextFile, writeAgreedText } from '../util/files.js';
+import { kindOfName, readTextFile, writeAgreedText } from '../util/files.js';
 import type { CommandIo } from '../util/io.js';
 import { numberOption } from './options.js';
 
@@ -64,19 +65,26 @@ export function terminalAsker(io: CommandIo): Asker | undefined {
   };
 }
 
-export async function runListenCommand(cli: ListenCli, io: CommandIo, ask: Asker | undefined = terminalAsker(io)): Promise<void> {
+/**
+ * Runs `ports --watch` or `--learn`; resolves to the exit code: for --watch, as for `play` (0 after
+ * q or --stop-after, 130, 143 or 129 after a signal; `EXIT_CODES` in src/live/run.ts).
+ */
+export async function runListenCommand(cli: ListenCli, io: CommandIo, ask: Asker | undefined = terminalAsker(io)): Promise<number> {
   if (cli.watch && cli.learn) throw new UserError('ports: --watch and --learn cannot both be given', 2);
   const learnOnly = (['into', 'saveAs', 'action', 'key', 'latch', 'force'] as const).find((o) => cli[o] !== undefined);
   if (cli.watch) {
-    if (learnOnly) throw new UserError(`ports --watch: --${learnOnly === 'saveAs' ? 'save-as' : learnOnly} belongs to --learn`, 2);
-    await watch(cli, io);
-    return;
+    if (learnOnly) throw new UserError(`ports --watch: ${flagOf(learnOnly)} belongs to --learn`, 2);
+    return watch(cli, io);
   }
   await learn(cli, io, ask);
+  return EXIT_CODES.quit;
 }
 
-/** Why listening ended: a gesture (learn), the player (q, Ctrl-C), or the time. */
-type Ending = { readonly kind: 'gesture'; readonly gesture: Gesture; readonly input: string } | { readonly kind: 'stopped'; readonly why: string };
+/** An option as it is written on the command line: saveAs → --save-as. */
+const flagOf = (name: string): string => `--${name.replace(/[A-Z]/gu, (c) => `-${c.toLowerCase()}`)}`;
+
+/** Why listening ended: a gesture (learn), or the player (q, Ctrl-C), a signal or the time, with the exit code that stop means. */
+type Ending = { readonly kind: 'gesture'; readonly gesture: Gesture; readonly input: string } | { readonly kind: 'stopped'; readonly why: string; readonly code: number };
 
 /** Listens until `onGesture` says done, the player stops, or `--stop-after` passes. */
 async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise<Ending> {
@@ -121,12 +129,12 @@ async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise
     const quit = process.stdin.isTTY ? 'q or Ctrl-C' : 'Ctrl-C';
     io.stdout.write(watching ? `listening to ${names}: press pedals, keys and buttons to see what they send; ${quit} ends\n` : `listening to ${names}: press the pedal (and let it go), the key switch or the button for ${cli.action ?? 'the control'}; ${quit} gives up\n`);
     for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
-      const handler = (): void => end({ kind: 'stopped', why: signal === 'SIGINT' ? 'stopped by Ctrl-C' : `stopped by ${signal}` });
+      const handler = (): void => end({ kind: 'stopped', why: signal === 'SIGINT' ? 'stopped by Ctrl-C' : `stopped by ${signal}`, code: EXIT_CODES[signal] });
       process.once(signal, handler);
       cleanups.push(() => process.removeListener(signal, handler));
     }
     if (cli.stopAfter !== undefined) {
-      const timer = setTimeout(() => end({ kind: 'stopped', why: `nothing was heard in ${cli.stopAfter} s` }), cli.stopAfter * 1000);
+      const timer = setTimeout(() => end({ kind: 'stopped', why: `nothing was heard in ${cli.stopAfter} s`, code: EXIT_CODES.quit }), cli.stopAfter * 1000);
       cleanups.push(() => clearTimeout(timer));
     }
     const stdin = process.stdin;
@@ -135,7 +143,8 @@ async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise
       stdin.resume();
       const key = (data: Buffer): void => {
         const text = data.toString();
-        if (text === 'q' || text === '\u0003') end({ kind: 'stopped', why: 'the player stopped' });
+        if (text === 'q') end({ kind: 'stopped', why: 'the player stopped', code: EXIT_CODES.quit });
+        else if (text === '\u0003') end({ kind: 'stopped', why: 'stopped by Ctrl-C', code: EXIT_CODES.SIGINT }); // Ctrl-C while the terminal is raw
       };
       stdin.on('data', key);
       cleanups.push(() => {
@@ -147,8 +156,10 @@ async function listen(cli: ListenCli, io: CommandIo, watching: boolean): Promise
   });
 }
 
-async function watch(cli: ListenCli, io: CommandIo): Promise<void> {
-  await listen(cli, io, true);
+/** Watches until the player or the time stops it (listening never ends on a gesture here). */
+async function watch(cli: ListenCli, io: CommandIo): Promise<number> {
+  const ending = await listen(cli, io, true);
+  return ending.kind === 'stopped' ? ending.code : EXIT_CODES.quit;
 }
 
 /** The action asked for, checked before anything is heard (a mistake costs no pedal presses). */
@@ -178,6 +189,13 @@ function targetOf(cli: ListenCli, ask: Asker | undefined): Target | undefined {
     if (cli.force) throw new UserError('--force goes with --into SETUP', 2);
     return undefined;
   }
+  const file = cli.saveAs ?? cli.into;
+  const ext = extname(file).toLowerCase();
+  const other = ext === '.json' ? undefined : kindOfName(file);
+  if (other) {
+    const option = cli.saveAs !== undefined ? '--save-as' : '--into';
+    throw new UserError(`${option} ${file}: a "${ext}" name is for ${other}, but ${option} writes a setup (.json); give a name ending in .json`, 2);
+  }
   const exists = existsSync(cli.into);
   if (cli.saveAs !== undefined && !exists) throw new UserError(`--into ${cli.into}: no such file to copy (without --save-as, --into makes it)`);
   const base = exists ? readTextFile(cli.into) : undefined;
@@ -188,7 +206,6 @@ function targetOf(cli: ListenCli, ask: Asker | undefined): Target | undefined {
       throw new UserError(`${cli.into}: has ${errors.length} problem${errors.length === 1 ? '' : 's'} already (${formatProblem(cli.into, errors[0]!, before.source)}); fix ${errors.length === 1 ? 'it' : 'them'} first ("diesis check ${cli.into}")`);
     }
   }
-  const file = cli.saveAs ?? cli.into;
   const replace = existsSync(file);
   if (replace && !cli.force && !ask) {
     throw new UserError(`${file}: exists, and it is your setup: diesis changes it only when you say so: add --force (your comments and layout stay), or --save-as NEW.json to write a copy with the new control`, 2);
@@ -197,7 +214,7 @@ function targetOf(cli: ListenCli, ask: Asker | undefined): Target | undefined {
 }
 
 async function learn(cli: ListenCli, io: CommandIo, ask: Asker | undefined): Promise<void> {
-  if (!cli.learn) throw new UserError('ports: --in and the learning options go with --watch or --learn', 2);
+  if (!cli.learn) throw new UserError(`ports: ${flagOf(Object.keys(cli)[0] ?? 'in')} goes with --watch or --learn`, 2);
   if (cli.action === undefined && !ask) throw new UserError('ports --learn: give --action (one of ' + ACTION_NAMES.join(', ') + '); on a terminal diesis asks', 2);
   let action = cli.action === undefined ? undefined : actionFrom(cli.action, cli);
   const target = targetOf(cli, ask);

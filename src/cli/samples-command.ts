@@ -42,9 +42,11 @@ export function registerSamples(program: Command, io: CommandIo): void {
       const preset = loadTuningPreset(cli.tuning);
       const reference = cli.ref !== undefined ? optionValue(() => parseReference(cli.ref!, '--ref')) : (preset.reference ?? A440);
       const compass = /^(\d+)-(\d+)$/u.exec(cli.compass);
-      const low = integerOption('--compass', 0, 127)(compass?.[1] ?? 'x');
-      const high = integerOption('--compass', 0, 127)(compass?.[2] ?? 'x');
-      if (!compass || high < low) throw new UserError(`--compass "${cli.compass}" must be two keys, low-high, as 36-96`, 2);
+      const twoKeys = (): UserError => new UserError(`--compass "${cli.compass}" must be two keys, low-high, as 36-96`, 2);
+      if (!compass) throw twoKeys();
+      const low = integerOption('--compass', 0, 127)(compass[1]!);
+      const high = integerOption('--compass', 0, 127)(compass[2]!);
+      if (high < low) throw twoKeys();
       setTarget(cli.to, [cli.from]); // refuse a target that would touch the player's files before any work
       const range = cli.range !== undefined ? optionValue(() => parseFifthsRange(cli.range!, '--range')) : defaultSetRange(preset.tuning);
       const key = cli.key === undefined ? undefined : optionValue(() => parseKey(cli.key!, '--key'));

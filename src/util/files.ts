@@ -123,6 +123,13 @@ function kindOfExtension(ext: string): OutputKind | undefined {
   return (Object.keys(KINDS) as OutputKind[]).find((k) => KINDS[k].extensions.includes(ext));
 }
 
+/** The kind of file a name is for, when diesis knows its extension: ".mid" → "a Standard MIDI File (.mid)", ".json" → "a JSON file (…)". */
+export function kindOfName(path: string): string | undefined {
+  const ext = extname(path).toLowerCase();
+  const kind = kindOfExtension(ext);
+  return kind ? KINDS[kind].label : FOREIGN[ext];
+}
+
 function headOf(file: string): Uint8Array {
   const fd = openSync(file, 'r');
   try {
@@ -183,8 +190,7 @@ export function isWithin(inner: string, outer: string): boolean {
 export function checkOutputPath(option: string, path: string, kind: OutputKind, inputs: readonly string[] = []): void {
   const spec = KINDS[kind];
   const ext = extname(path).toLowerCase();
-  const other = kindOfExtension(ext);
-  const foreign = other !== undefined && other !== kind ? KINDS[other].label : FOREIGN[ext];
+  const foreign = spec.extensions.includes(ext) ? undefined : kindOfName(path);
   if (foreign) throw new UserError(`${option} ${path}: a "${ext}" name is for ${foreign}, but ${option} writes ${spec.label}; give a name ending in ${spec.extensions[0]}`, 2);
   const target = statOrUndefined(path);
   for (const input of inputs) {

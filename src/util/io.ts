@@ -10,10 +10,10 @@ export interface CommandIo {
 }
 
 /**
- * How a command that runs until it is stopped (`play`, `demo`, `synth-check`) ended: 0, or 130,
- * 143, 129 or 70 after a signal or an internal error (`EXIT_CODES` in src/live/run.ts). `main`
- * (src/cli/main.ts) returns it, so every way of starting the command (`diesis`, `npm start`, the
- * tests) exits with the same code.
+ * How a command that runs until it is stopped (`play`, `demo`, `synth-check`, `ports --watch`)
+ * ended: 0, or 130, 143, 129 or 70 after a signal or an internal error (`EXIT_CODES` in
+ * src/live/run.ts). `main` (src/cli/main.ts) returns it, so every way of starting the command
+ * (`diesis`, `npm start`, the tests) exits with the same code.
  */
 export interface CommandEnd {
   code: number;

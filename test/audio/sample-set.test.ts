@@ -1,7 +1,7 @@
 import { existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { buildSampleSet, fileStem, keyFromName, loadSampleSet, playSampleSet, readSourceFolder, rootKeyFromName } from '../../src/audio/sample-set.js';
+import { buildSampleSet, checkSetPlays, fileStem, keyFromName, loadSampleSet, playSampleSet, readSourceFolder, rootKeyFromName } from '../../src/audio/sample-set.js';
 import { writeWav } from '../../src/audio/wav.js';
 import { formatSpelledPitch, keyOf, parseFifthsRange, parseSpelledPitch, parseWindow, spellKey } from '../../src/pitch/index.js';
 import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
@@ -108,11 +108,49 @@ describe('retuned sample sets', () => {
       const pitch = parseSpelledPitch(f.spelling);
       expect(keyOf(pitch)).toBe(f.key);
       expect(manifest.layout.find((l) => l.channel === f.channel)?.fifths).toBe(pitch.fifths);
-      expect(f.hz).toBeCloseTo(frequency(meantone, A440, pitch), 9);
+      expect(Math.abs(1200 * Math.log2(f.hz / frequency(meantone, A440, pitch)))).toBeLessThan(1e-5); // as written: rounded to 10 digits
       expect(existsSync(join(out, f.file))).toBe(true);
     }
     const sfz = readFileSync(join(out, 'diesis.sfz'), 'utf8');
     expect(sfz).toMatch(/<group> lochan=12 hichan=12[^\n]*\n<region> sample=Gs3\.wav lokey=56 hikey=56 pitch_keycenter=56 loop_mode=loop_continuous/u);
+  });
+
+  /** Significant digits of a number as JSON writes it (123.45 → 5, 0.0123 → 3, 440 → 3). */
+  const significantDigits = (token: string): number => token.replace(/^-?0*\.?0*/u, '').replace('.', '').length;
+
+  it('writes manifest.json with its figures rounded, and reads it back to the same map and frequencies', () => {
+    const text = readFileSync(join(out, 'manifest.json'), 'utf8');
+    const hzTokens = [...text.matchAll(/"hz": ([-\d.e+]+)/gu)].map((m) => m[1]!);
+    const shiftTokens = [...text.matchAll(/"shiftCents": ([-\d.e+]+)/gu)].map((m) => m[1]!);
+    expect(hzTokens).toHaveLength(25);
+    expect(shiftTokens).toHaveLength(25);
+    for (const t of hzTokens) expect(significantDigits(t), t).toBeLessThanOrEqual(10);
+    for (const t of shiftTokens) expect(t.split('.')[1]?.length ?? 0, t).toBeLessThanOrEqual(4);
+    const set = loadSampleSet(out);
+    // The layout as built: the window's spellings on channels 1–12 in order along the line of fifths,
+    // E♭ three fifths below C to G♯ eight above (common practice, no source).
+    expect([...set.layout]).toEqual(Array.from({ length: 12 }, (_, i) => [i - 3, i]));
+    for (const f of set.manifest.files) {
+      const pitch = parseSpelledPitch(f.spelling);
+      expect(keyOf(pitch)).toBe(f.key);
+      expect(set.layout.get(pitch.fifths)).toBe(f.channel - 1);
+      expect(set.audio(f.channel - 1, f.key)).toBeDefined();
+      // The frequency read back is the spelling's (from the tuning core) to far under the 0.01 cent the set is checked to.
+      expect(Math.abs(1200 * Math.log2(f.hz / frequency(meantone, A440, pitch))), f.spelling).toBeLessThan(1e-5);
+    }
+    expect(() => checkSetPlays(set, { tuning: meantone, tuningName: 'quarter-comma', reference: A440 })).not.toThrow();
+    // 440.1 Hz is 0.39 cent above 440 (1200·log2(440.1/440)): the read-back still tells them apart.
+    expect(() => checkSetPlays(set, { tuning: meantone, tuningName: 'quarter-comma', reference: parseReference('A4=440.1') })).toThrow(/would be 0\.39 cents off/u);
+  });
+
+  it('keeps a very low set’s frequencies within 0.01 cent too (the rounding is relative, not a fixed number of places)', () => {
+    // A4 = 1 Hz (the lowest reference diesis takes) puts keys 0–12 between about 0.019 and 0.037 Hz;
+    // the source's frequency comes from map.json.
+    const dir = folderOf(['F#-1.wav'], { 'F#-1.wav': { key: 6, hz: 0.026 } });
+    const low = join(tempDir('diesis-set-'), 'low');
+    const reference = parseReference('A4=1');
+    buildSampleSet({ sources: readSourceFolder(dir), tuning: meantone, tuningName: 'quarter-comma', reference, range: parseFifthsRange('Eb..G#'), compass: { low: 0, high: 12 }, maxShift: 12 }, low);
+    expect(() => checkSetPlays(loadSampleSet(low), { tuning: meantone, tuningName: 'quarter-comma', reference })).not.toThrow();
   });
 
   it('drops a note outside the compass the set was built for, and says why, instead of sending it to silence', () => {

@@ -1,4 +1,4 @@
-import { lstatSync, readFileSync, symlinkSync, writeFileSync } from 'node:fs';
+import { existsSync, lstatSync, readFileSync, symlinkSync, writeFileSync } from 'node:fs';
 import { writeAgreedText } from '../../src/util/files.js';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
@@ -231,6 +231,26 @@ describe('diesis ports --learn, on virtual ports', () => {
     expect(questions[3]).toMatch(new RegExp(`^add it to ${file.replace(/[.*+?^${}()|[\]\\]/gu, '\\$&')}\\?`, 'u'));
     expect(stdout).toContain('control: { "program": 7, "channel": 1, "action": "set-key", "key": "D minor" }');
     expect(checkSetup(readFileSync(file, 'utf8'), file).setup?.json.controls?.[2]).toEqual({ program: 7, channel: 1, action: 'set-key', key: 'D minor' });
+  });
+
+  it('refuses a setup name that is another kind of file before listening, and never writes over it', async () => {
+    const dir = tempDir('diesis-learn-');
+    const setup = join(dir, 'harpsichord.json');
+    writeFileSync(setup, PLAYERS_SETUP);
+    const piece = join(dir, 'piece.mid');
+    const midi = 'MThd not really, but the player’s';
+    writeFileSync(piece, midi);
+    const overPiece = await runListening(['--learn', '--into', setup, '--save-as', piece, '--action', 'freeze', '--force'], pressAndLetGo(67));
+    expect(overPiece.stderr).toBe(`diesis: --save-as ${piece}: a ".mid" name is for a Standard MIDI File (.mid), but --save-as writes a setup (.json); give a name ending in .json\n`);
+    expect(overPiece.code).toBe(2);
+    expect(overPiece.stdout).toBe(''); // refused before asking for a pedal
+    expect(readFileSync(piece, 'utf8')).toBe(midi);
+    expect(readFileSync(setup, 'utf8')).toBe(PLAYERS_SETUP);
+    const newWav = join(dir, 'new.wav');
+    const intoWav = await runListening(['--learn', '--into', newWav, '--action', 'flip'], pressAndLetGo(66));
+    expect(intoWav.stderr).toBe(`diesis: --into ${newWav}: a ".wav" name is for a WAV file (.wav), but --into writes a setup (.json); give a name ending in .json\n`);
+    expect(intoWav.code).toBe(2);
+    expect(existsSync(newWav)).toBe(false);
   });
 
   it('gives up after --stop-after when nothing is pressed', async () => {

@@ -52,8 +52,8 @@ describe('signals and crashes end the session with a panic first', () => {
   });
 });
 
-/** Runs a command in a child process, sends SIGINT once its output matches `ready`, and gives what it printed and its exit code. */
-function interrupted(args: string[], ready: RegExp): Promise<{ exitCode: number | null; stdout: string; stderr: string }> {
+/** Runs a command in a child process, sends `signal` (SIGINT unless told) once its output matches `ready`, and gives what it printed and its exit code. */
+function interrupted(args: string[], ready: RegExp, signal: NodeJS.Signals = 'SIGINT'): Promise<{ exitCode: number | null; stdout: string; stderr: string }> {
   return new Promise((resolve, reject) => {
     const child = spawn(process.execPath, args, { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
     let stdout = '';
@@ -63,7 +63,7 @@ function interrupted(args: string[], ready: RegExp): Promise<{ exitCode: number 
       stdout += chunk.toString();
       if (!sent && ready.test(stdout)) {
         sent = true;
-        child.kill('SIGINT');
+        child.kill(signal);
       }
     });
     child.stderr.on('data', (chunk: Buffer) => (stderr += chunk.toString()));
@@ -93,6 +93,19 @@ describe('Ctrl-C ends play and the demo alike: every note released, then exit 13
     expect(stdout).toMatch(/PANIC \(SIGINT\)/u);
     expect(stdout).toMatch(/nothing is left sounding\.\n$/u); // the demo's own synth holds nothing at the end
     expect(exitCode).toBe(130);
+  });
+});
+
+describe('ports --watch ends on a signal as play does', () => {
+  it.each([
+    ['SIGINT', 130],
+    ['SIGTERM', 143],
+  ] as const)('%s: exit %i, and the input is let go', async (signal, code) => {
+    const { exitCode, stdout } = await interrupted([join(root, 'test/fixtures/watch-child.js')], /^ready$/mu, signal);
+    expect(stdout).toMatch(/controller 64 \(sustain pedal\) on channel 1: 127\n/u); // it was watching when the signal came
+    // heardAfterEnd: a message sent after main returned did not reach the watch.
+    expect(JSON.parse(stdout.trim().split('\n').pop() ?? '{}')).toEqual({ code, heardAfterEnd: false });
+    expect(exitCode).toBe(code);
   });
 });
 

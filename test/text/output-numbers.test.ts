@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { OUTPUT_DECIMALS, outputNumber, roundTo } from '../../src/text/output-numbers.js';
+import { OUTPUT_DECIMALS, outputNumber, roundSignificant, roundTo } from '../../src/text/output-numbers.js';
 
 describe('numbers at the output boundary', () => {
   it('rounds float noise away and keeps what a reader can use', () => {
@@ -26,5 +26,16 @@ describe('numbers at the output boundary', () => {
     expect(OUTPUT_DECIMALS).toEqual({ cents: 4, hz: 6, seconds: 6, milliseconds: 3, beats: 4 });
     expect(outputNumber(1.23456789, 'cents')).toBe(1.2346);
     expect(outputNumber(1.23456789, 'hz')).toBe(1.234568);
+  });
+
+  it('rounds a recorded frequency to significant digits, whatever its size', () => {
+    expect(roundSignificant(440.00000000000006, 10)).toBe(440);
+    // 12-ET middle C at A4 = 440 Hz, 261.6256 Hz in the usual frequency tables (common practice, no source).
+    expect(roundSignificant(440 * 2 ** (-9 / 12), 7)).toBe(261.6256);
+    expect(roundSignificant(0.018581361171917516, 4)).toBe(0.01858);
+    expect(roundSignificant(19_999.99999999, 10)).toBe(20_000);
+    expect(Object.is(roundSignificant(-1e-300, 10), -1e-300)).toBe(true); // tiny is not zero: only its digits are cut
+    expect(Object.is(roundSignificant(-0, 10), 0)).toBe(true);
+    expect(roundSignificant(Number.NaN, 10)).toBeNaN();
   });
 });
