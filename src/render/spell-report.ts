@@ -24,8 +24,13 @@ export interface SpellRow {
   readonly score?: { readonly bar: string | null; readonly match: string } | undefined;
 }
 
-/** The intervals the wolf list watches, by keys apart (octaves folded), with their pure ratios (common practice, no source). */
+/**
+ * The intervals the wolf list watches, by keys apart (octaves folded), with their pure ratios
+ * (common practice, no source); octaves are watched as the fifths are, and only between two
+ * spellings of one key class (G♭3 against F♯4), the one way an octave can be out of tune.
+ */
 const WATCHED: ReadonlyMap<number, { readonly kind: WolfKind; readonly pure: PureInterval; readonly limit: keyof WolfLimits }> = new Map([
+  [0, { kind: 'octave', pure: { p: 2, q: 1, name: 'octave' }, limit: 'fifth' }],
   [7, { kind: 'fifth', pure: PURE_FIFTH_INTERVAL, limit: 'fifth' }],
   [4, { kind: 'major third', pure: PURE_MAJOR_THIRD, limit: 'third' }],
   [3, { kind: 'minor third', pure: { p: 6, q: 5, name: 'minor third' }, limit: 'third' }],
@@ -45,9 +50,11 @@ const SPELLED: ReadonlyMap<number, string> = new Map([
   [8, 'augmented fifth'],
   [3, 'major sixth'],
   [-9, 'diminished seventh'],
+  [12, 'augmented seventh'],
+  [-12, 'diminished ninth'],
 ]);
 
-export type WolfKind = 'fifth' | 'major third' | 'minor third' | 'minor sixth' | 'major sixth';
+export type WolfKind = 'octave' | 'fifth' | 'major third' | 'minor third' | 'minor sixth' | 'major sixth';
 
 export interface WolfCount {
   readonly kind: WolfKind;
@@ -92,8 +99,9 @@ export class SpellReport {
     const watched = WATCHED.get(mod(high.key - low.key, 12));
     if (!watched || high.key === low.key) return;
     const { kind } = watched;
+    if (kind === 'octave' && high.pitch.fifths === low.pitch.fifths) return;
     const size = mod(1200 * Math.log2(high.hz / low.hz), 1200); // octaves folded away
-    const deviation = size - pureCents(watched.pure);
+    const deviation = kind === 'octave' ? (size > 600 ? size - 1200 : size) : size - pureCents(watched.pure);
     if (Math.abs(deviation) <= this.limits[watched.limit]) return;
     const id = `${kind} ${low.pitch.fifths} ${high.pitch.fifths}`;
     const entry = this.wolves.get(id) ?? { kind, lower: pitchClass(low.pitch.fifths), upper: pitchClass(high.pitch.fifths), deviation, count: 0 };
@@ -109,6 +117,18 @@ export class SpellReport {
       const spellings = [...counts.entries()].map(([fifths, count]) => ({ pitch: pitchClass(fifths), count })).sort((x, y) => y.count - x.count);
       return { chroma, spellings };
     });
+  }
+
+  /** For each white key, how many notes took a spelling other than its own letter (E♯ 8, F♭ 2 …); keys spelled only as themselves are left out. */
+  otherWhiteKeys(): Array<{ chroma: number; spellings: Array<{ pitch: PitchClass; count: number }> }> {
+    return [0, 2, 4, 5, 7, 9, 11]
+      .map((chroma) => {
+        const counts = new Map<number, number>();
+        for (const r of this.rows) if (chromaOf(r.pitch) === chroma && Math.abs(r.pitch.fifths - 2) > 3) counts.set(r.pitch.fifths, (counts.get(r.pitch.fifths) ?? 0) + 1);
+        const spellings = [...counts.entries()].map(([fifths, count]) => ({ pitch: pitchClass(fifths), count })).sort((x, y) => y.count - x.count);
+        return { chroma, spellings };
+      })
+      .filter((w) => w.spellings.length > 0);
   }
 
   wolfList(): WolfCount[] {
@@ -141,6 +161,9 @@ export class SpellReport {
       const label = `${name(nearestSpelling(b.chroma, 6))}/${name(nearestSpelling(b.chroma, -6))}`;
       lines.push(`  ${label.padEnd(7)} ${b.spellings.map((s) => `${s.count} ${name(s.pitch)}`).join(', ') || 'none'}`);
     }
+    const others = this.otherWhiteKeys();
+    if (others.length > 0) lines.push('white keys spelled otherwise:');
+    for (const w of others) lines.push(`  ${name(nearestSpelling(w.chroma, 2)).padEnd(7)} ${w.spellings.map((s) => `${s.count} ${name(s.pitch)}`).join(', ')}`);
     const wolves = this.wolfList();
     lines.push(wolves.length === 0 ? 'wolves: none sounded' : 'wolves sounded:');
     for (const w of wolves.slice(0, 12)) {

@@ -25,7 +25,8 @@ const ACCEPTED = '"D minor", "Dm", "D major", "F# minor", "Bb major", "E flat ma
 /**
  * Parses a key as musicians write it: `D minor`, `d minor`, `Dm`, `Dmin`, `D`, `D major`, `Dmaj`,
  * `F# minor`, `Bb major`, `F♯ minor`, `E flat major`, `F sharp minor`, `E phrygian`; a tonic alone
- * is major. Refused: a chord symbol's `M` (`DM`: major in chord symbols, minor to some readers), a
+ * is major; German `C dur`, `d-moll`. Refused: a chord symbol's `M` (`DM`: major in chord symbols,
+ * minor to some readers) or `-` (`D-`: minor in chord symbols, a slip to others), a
  * lowercase tonic alone (`d`: minor in some traditions, major in others) and keys of more than
  * seven sharps or flats (named with their enharmonic), each with the accepted forms.
  */
@@ -34,6 +35,10 @@ export function parseKey(text: string, what = 'key'): DeclaredKey {
   const match = /^([A-Ga-g])([#b♯♭x𝄪𝄫]*)(?:\s*-?\s*)([A-Za-z]*)$/u.exec(words);
   if (!match) throw new UserError(`${what} "${text}" is not a key: write a tonic and a mode, as in ${ACCEPTED}`);
   const [, letter = '', accidentals = '', modeText = ''] = match;
+  if (modeText === '' && /-\s*$/u.test(words)) {
+    const tonic = `${letter.toUpperCase()}${accidentals}`;
+    throw new UserError(`${what} "${text}" is ambiguous: "-" means minor in chord symbols and may be a slip; write "${tonic} minor" or "${tonic} major"`);
+  }
   if (modeText === 'M') throw new UserError(`${what} "${text}" is ambiguous: "M" means major in chord symbols; write "${letter.toUpperCase()}${accidentals} major" or "${letter.toUpperCase()}${accidentals} minor"`);
   if (modeText === '' && letter === letter.toLowerCase()) {
     const tonic = `${letter.toUpperCase()}${accidentals}`;

@@ -45,6 +45,10 @@ describe('declared keys', () => {
     expect(() => parseKey('F#M')).toThrow(/ambiguous/u);
     // A lowercase letter alone is minor in some traditions (common practice, no source).
     expect(() => parseKey('d')).toThrow(/"d" is ambiguous.*"D major" or "D minor"/u);
+    // "D-" is a D minor chord in chord symbols (common practice, no source): never read as major.
+    expect(() => parseKey('D-')).toThrow(/"D-" is ambiguous.*"D minor" or "D major"/u);
+    expect(() => parseKey('Bb -')).toThrow(/ambiguous/u);
+    expect(formatKey(parseKey('d-moll'))).toBe('D minor');
     expect(() => parseKey('D minr')).toThrow(/unknown mode "minr".*accepted/u);
     expect(() => parseKey('X major')).toThrow(/is not a key.*"Bb major"/u);
   });
