@@ -1,6 +1,6 @@
 import type { Command } from 'commander';
 import { relative } from 'node:path';
-import { formatProblem, parseJsonText } from '../presets/problems.js';
+import { formatProblem, inFileOrder, parseJsonText } from '../presets/problems.js';
 import { checkSetup } from '../presets/setup-file.js';
 import { isProgrammeValue } from '../presets/programme-file.js';
 import { reportProgrammeCheck } from './programme-command.js';
@@ -53,7 +53,7 @@ export function registerPresetCommands(program: Command, io: CommandIo): void {
       }
       const isTuning = typeof value === 'object' && value !== null && 'kind' in value;
       const check = isTuning ? checkTuningPreset(text, file) : checkSetup(text, file);
-      for (const problem of check.problems) io.stderr.write(formatProblem(file, problem, check.source) + '\n');
+      for (const problem of inFileOrder(check.problems, check.source)) io.stderr.write(formatProblem(file, problem, check.source) + '\n');
       const ok = 'preset' in check ? check.preset && `${check.preset.name} (${check.preset.kind})` : check.setup && `setup${check.setup.json.name ? ` "${check.setup.json.name}"` : ''}`;
       if (ok) {
         const score = 'setup' in check ? check.setup?.score : undefined;

@@ -32,6 +32,8 @@ function lineAt(text: string, offset: number): { line: number; column: number } 
  * trailing commas. A syntax error is one line naming the file, line and column.
  */
 export function parseJsonSource(text: string, file: string): JsonSource {
+  if (text.startsWith('MThd')) throw new UserError(`${file}: a Standard MIDI File, not a JSON setup, tuning or programme (diesis spell previews a piece)`);
+  if (text.includes('\u0000')) throw new UserError(`${file}: not a text file; setups, tunings and programmes are JSON`);
   const errors: ParseError[] = [];
   const root: Node | undefined = parseTree(text, errors, { allowTrailingComma: true, disallowComments: false, allowEmptyContent: false });
   const first = errors[0];

@@ -64,6 +64,12 @@ export function formatProblem(file: string, problem: Problem, source?: JsonSourc
   return `${file}${line === undefined ? '' : `:${line}`}: ${problem.warning ? 'warning: ' : ''}${where(problem.path)}: ${problem.message}`;
 }
 
+/** The problems in the order their lines come in the file (those with no line last), otherwise as found. */
+export function inFileOrder(problems: readonly Problem[], source?: JsonSource): Problem[] {
+  const line = (p: Problem): number => source?.lineOf(p.path) ?? Infinity;
+  return [...problems].sort((a, b) => line(a) - line(b));
+}
+
 /** Throws the first problem that is not a warning as a one-line UserError, saying how many more there are. */
 export function throwProblems(file: string, problems: readonly Problem[], hint: string, source?: JsonSource): never {
   const errors = problems.filter((p) => !p.warning);

@@ -145,6 +145,18 @@ describe('diesis presets and check', () => {
   });
 });
 
+describe('check lists problems in file order', () => {
+  it('prints each problem at its line, top to bottom, whatever order they were found in', async () => {
+    const { writeFileSync } = await import('node:fs');
+    const { join } = await import('node:path');
+    const file = join(tempDir('diesis-check-order-'), 'setup.json');
+    writeFileSync(file, '{\n  "tuning": "nosuch-tuning",\n  "output": { "mode": "bend", "bendRange": 500 },\n  "spelling": { "strategy": "follow", "gatherMs": 500 }\n}\n');
+    const bad = await runCli('check', file);
+    expect(bad.code).toBe(1);
+    expect(bad.stderr.trim().split('\n').map((l) => /\.json:(\d+):/u.exec(l)?.[1])).toEqual(['2', '3', '4', undefined]);
+  });
+});
+
 describe('chart options that exclude each other', () => {
   it('refuses --json with --csv, in one line, as a usage mistake', async () => {
     const both = await runCli('chart', 'meantone-1-4', '--json', '--csv');

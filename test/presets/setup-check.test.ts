@@ -66,6 +66,12 @@ describe('check sees what play would refuse, all of it at once, with lines', () 
     expect(resolveEngineCli({ setup: join(dir, 'setup.json') }).preset.name).toBe('Mine');
   });
 
+  it('a MIDI file or another binary file given as a setup is named for what it is', () => {
+    // A Standard MIDI File begins with the chunk type "MThd" (MIDI 1.0, Standard MIDI Files).
+    expect(() => checkSetup('MThd\u0000\u0000\u0000\u0006\u0000\u0000', 'piece.mid')).toThrow(/^piece\.mid: a Standard MIDI File, not a JSON setup/u);
+    expect(() => checkSetup('RIFF\u0000\u0000WAVE', 'take.wav')).toThrow(/^take\.wav: not a text file/u);
+  });
+
   it('JSON mistakes name the line and column', () => {
     expect(() => checkSetup('{\n  "tuning": "meantone-1-4"\n  "reference": "A4=415"\n}', 's.json')).toThrow(/^s\.json:3:3: not valid JSON: comma expected/u);
   });
