@@ -29,7 +29,7 @@ export function registerSpell(program: Command, io: CommandIo): void {
     .option('--ascii', 'write # and b instead of ♯ and ♭');
   addEngineOptions(command).action((input: string, cli: SpellOptions) => {
     refuseFolderInput(input, 'a Standard MIDI File: give the piece to spell, as piece.mid');
-    const { preset, options, spellingLabel, speller } = resolveEngineCli(cli);
+    const { preset, options, spellingLabel, speller, strategy } = resolveEngineCli(cli);
     const score = scoreSpellerOf(speller);
     const content = readMidiFile(readInputFile(input), input);
     let tick = 0;
@@ -41,6 +41,8 @@ export function registerSpell(program: Command, io: CommandIo): void {
         if (e.type === 'note') {
           const m = matchOf(speller, sourceOf(e.id), channelOf(e.id), keyOfNote(e.id));
           report.note(e, tick, m && { bar: m.bar, match: m.match });
+          const key = strategy === 'follow' ? speller.currentKey() : undefined;
+          if (key) report.countKey(key);
         } else if (e.type === 'key-up') report.noteOff(e.id);
       },
     });

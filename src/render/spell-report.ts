@@ -5,6 +5,7 @@ import { PURE_FIFTH_INTERVAL, PURE_MAJOR_THIRD, pureCents, type PureInterval, ty
 import { signed } from '../text/table.js';
 import { mod } from '../util/errors.js';
 import { outputNumber } from '../text/output-numbers.js';
+import { formatKey, type DeclaredKey } from '../spelling/keys.js';
 
 /** One spelled note-on of a file, as `diesis spell` reports it. */
 export interface SpellRow {
@@ -69,6 +70,8 @@ export class SpellReport {
   readonly rows: SpellRow[] = [];
   private readonly held = new Map<NoteId, SpellRow>();
   private readonly wolves = new Map<string, WolfCount>();
+  /** Notes heard in each key the speller followed, by key name (ASCII), with the key. */
+  private readonly keys = new Map<string, { key: DeclaredKey; notes: number }>();
 
   constructor(private readonly limits: WolfLimits) {}
 
@@ -87,6 +90,20 @@ export class SpellReport {
     for (const other of this.held.values()) this.checkPair(other, row);
     this.held.set(event.id, row);
     this.rows.push(row);
+  }
+
+  /** Counts one note for the key the speller was following when it was spelled. */
+  countKey(key: DeclaredKey): void {
+    const name = formatKey(key);
+    const entry = this.keys.get(name) ?? { key, notes: 0 };
+    entry.notes++;
+    this.keys.set(name, entry);
+  }
+
+  /** The keys followed, most notes first, with each one's share of the notes counted. */
+  keysFollowed(): Array<{ key: DeclaredKey; share: number }> {
+    const total = [...this.keys.values()].reduce((n, k) => n + k.notes, 0);
+    return [...this.keys.values()].sort((a, b) => b.notes - a.notes).map((k) => ({ key: k.key, share: k.notes / total }));
   }
 
   noteOff(id: NoteId): void {
@@ -164,6 +181,8 @@ export class SpellReport {
     const others = this.otherWhiteKeys();
     if (others.length > 0) lines.push('white keys spelled otherwise:');
     for (const w of others) lines.push(`  ${name(nearestSpelling(w.chroma, 2)).padEnd(7)} ${w.spellings.map((s) => `${s.count} ${name(s.pitch)}`).join(', ')}`);
+    const followed = this.keysFollowed().filter((k) => k.share >= 0.02);
+    if (followed.length > 0) lines.push(`keys followed: ${followed.slice(0, 6).map((k) => `${name(k.key.tonic)} ${k.key.mode} ${Math.round(100 * k.share)} %`).join(', ')}`);
     const wolves = this.wolfList();
     lines.push(wolves.length === 0 ? 'wolves: none sounded' : 'wolves sounded:');
     for (const w of wolves.slice(0, 12)) {

@@ -69,6 +69,11 @@ describe('diesis spell', () => {
     expect(stdout).toMatch(/\+41\.1 cents from pure/u); // the quarter-comma diminished fourth: the lesser diesis wide
   });
 
+  it('with follow, the summary names the keys followed; with a fixed window it does not', async () => {
+    expect((await runCli('spell', movement, '--ascii')).stdout).toMatch(/^keys followed: [A-G][#b]* (major|minor) \d+ %/mu);
+    expect((await runCli('spell', movement, '--spelling', 'fixed')).stdout).not.toMatch(/keys followed/u);
+  });
+
   it('reads a setup file, and lets the command line override it', async () => {
     const setup = join(import.meta.dirname, '../../presets/setups/multitimbral-sampler.json');
     const { stdout } = await runCli('spell', movement, '--setup', setup);

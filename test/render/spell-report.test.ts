@@ -1,10 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { keyOf, parseSpelledPitch } from '../../src/pitch/index.js';
+import { keyOf, parseSpelledPitch, pitchClass } from '../../src/pitch/index.js';
 import { loadTuningPreset } from '../../src/presets/tuning-presets.js';
 import { SpellReport } from '../../src/render/spell-report.js';
 import { noteId } from '../../src/midi/note-id.js';
 import type { NoteEvent } from '../../src/router/events.js';
 import { DEFAULT_WOLF_LIMITS, frequency, reference } from '../../src/tuning/index.js';
+import { parseKey, type DeclaredKey } from '../../src/spelling/keys.js';
 
 const quarterComma = loadTuningPreset('meantone-1-4').tuning;
 const a440 = reference(parseSpelledPitch('A4'), 440);
@@ -37,5 +38,15 @@ describe('the spelling summary', () => {
     const plain = new SpellReport(DEFAULT_WOLF_LIMITS);
     plain.note(note('C4', 0), 0);
     expect(plain.summaryText({ accidentals: 'ascii' })).not.toMatch(/white keys/u);
+  });
+
+  it('names the keys the speller followed, most notes first, leaving out those under 2 %', () => {
+    const report = new SpellReport(DEFAULT_WOLF_LIMITS);
+    // G♯ major has eight sharps: a key the follow speller names but a player cannot declare.
+    const gSharpMajor = { tonic: pitchClass(8), mode: 'major' as const };
+    const counts: Array<[DeclaredKey, number]> = [[parseKey('C# major'), 60], [gSharpMajor, 30], [parseKey('A# minor'), 9], [parseKey('D# minor'), 1]];
+    for (const [key, n] of counts) for (let i = 0; i < n; i++) report.countKey(key);
+    expect(report.summaryText({ accidentals: 'ascii' })).toMatch(/^keys followed: C# major 60 %, G# major 30 %, A# minor 9 %$/mu);
+    expect(new SpellReport(DEFAULT_WOLF_LIMITS).summaryText({ accidentals: 'ascii' })).not.toMatch(/keys followed/u);
   });
 });
