@@ -87,49 +87,37 @@ describe('diesis spell', () => {
 });
 
 describe('--gather applies to files as it does live', () => {
-  it('a chord spread over a few milliseconds is spelled as one chord with --gather, not note by note', async () => {
+  /**
+   * Our own phrase, written as a file (480 ticks a beat, 500 ms a beat): A minor, its dominant, A
+   * minor, then an F minor triad, its notes `spread` ticks apart; returns a function that spells it
+   * with the given options and gives the F minor triad's spellings.
+   */
+  async function phraseEndingInFMinor(spread: number): Promise<(...args: string[]) => Promise<string[]>> {
     const { writeMidiFile } = await import('../../src/render/smf.js');
     const { writeFileSync } = await import('node:fs');
     const { tempDir } = await import('../support/temp.js');
-    // Our own phrase: A minor, its dominant, A minor, then an F minor triad rolled over 25 ms (480 ticks a beat, 500 ms a beat).
     const events: Array<{ tick: number; data: number[] }> = [];
     let tick = 0;
-    const chord = (keys: number[], spread = 0): void => {
-      keys.forEach((k, i) => events.push({ tick: tick + i * spread, data: [0x90, k, 80] }));
+    for (const [i, keys] of [[57, 60, 64], [52, 56, 59, 62], [57, 60, 64], [53, 56, 60]].entries()) {
+      keys.forEach((k, j) => events.push({ tick: tick + (i === 3 ? j * spread : 0), data: [0x90, k, 80] }));
       keys.forEach((k) => events.push({ tick: tick + 470, data: [0x80, k, 0] }));
       tick += 480;
-    };
-    chord([57, 60, 64]);
-    chord([52, 56, 59, 62]);
-    chord([57, 60, 64]);
-    chord([53, 56, 60], 12);
+    }
     events.sort((a, b) => a.tick - b.tick);
-    const file = join(tempDir('diesis-gather-'), 'rolled.mid');
+    const file = join(tempDir('diesis-gather-'), 'phrase.mid');
     writeFileSync(file, writeMidiFile({ ticksPerBeat: 480 }, [], [events]));
-    const last = async (...args: string[]): Promise<string[]> =>
-      (await runCli('spell', file, '--json', ...args)).stdout.trim().split('\n').slice(-3).map((l) => (JSON.parse(l) as Row).spelling);
+    return async (...args) => (await runCli('spell', file, '--json', ...args)).stdout.trim().split('\n').slice(-3).map((l) => (JSON.parse(l) as Row).spelling);
+  }
+
+  it('a chord spread over a few milliseconds is spelled as one chord with --gather, not note by note', async () => {
+    const last = await phraseEndingInFMinor(12); // rolled over 25 ms
     // An F minor triad is F–A♭–C (common practice, no source); one note at a time, A♭ after A minor's G♯ reads as G♯.
     expect(await last('--gather', '30')).toEqual(['F3', 'Ab3', 'C4']);
     expect(await last()).toEqual(['F3', 'G#3', 'C4']);
   });
 
   it('notes with equal onsets in a file are a chord with --gather 0 too (the live default, as setups write it)', async () => {
-    const { writeMidiFile } = await import('../../src/render/smf.js');
-    const { writeFileSync } = await import('node:fs');
-    const { tempDir } = await import('../support/temp.js');
-    // Our own phrase: A minor, its dominant, A minor, then an F minor triad struck at once.
-    const events: Array<{ tick: number; data: number[] }> = [];
-    let tick = 0;
-    for (const keys of [[57, 60, 64], [52, 56, 59, 62], [57, 60, 64], [53, 56, 60]]) {
-      keys.forEach((k) => events.push({ tick, data: [0x90, k, 80] }));
-      keys.forEach((k) => events.push({ tick: tick + 470, data: [0x80, k, 0] }));
-      tick += 480;
-    }
-    events.sort((a, b) => a.tick - b.tick);
-    const file = join(tempDir('diesis-gather0-'), 'struck.mid');
-    writeFileSync(file, writeMidiFile({ ticksPerBeat: 480 }, [], [events]));
-    const last = async (...args: string[]): Promise<string[]> =>
-      (await runCli('spell', file, '--json', ...args)).stdout.trim().split('\n').slice(-3).map((l) => (JSON.parse(l) as Row).spelling);
+    const last = await phraseEndingInFMinor(0);
     // An F minor triad is F–A♭–C (common practice, no source), whatever --gather says.
     expect(await last()).toEqual(['F3', 'Ab3', 'C4']);
     expect(await last('--gather', '0')).toEqual(['F3', 'Ab3', 'C4']);
