@@ -427,9 +427,9 @@ export class FollowSpeller implements Speller {
   /**
    * The name of a key (tonic chroma and mode): of its enharmonic names (F♯ or G♭ major) the one
    * whose window is nearer the current key's, or, while the current key is only a guess, nearer the
-   * naming centre; ties go sharpward. Keys are written with at most seven sharps or flats, but a
-   * modulation to the dominant or subdominant may pass through one with eight (G♯ major from C♯
-   * minor); from there the name comes back within seven at the next key, and cannot walk further.
+   * naming centre; ties go sharpward. Keys are written with at most seven sharps or flats; a key
+   * near the one in force may take more (G♯ major from C♯ minor, D♭ minor from A♭ major: see
+   * `BEYOND_COST` and `mayGoBeyond`), and the next key found comes back within seven when it can.
    * When the player declared the key, names are taken nearest the declared key instead, and from a
    * remote declared key up to eleven accidentals (see `MAX_DECLARED_SIGNATURE`).
    */
