@@ -2,6 +2,9 @@ import { DEFAULT_WINDOW, keyboardWindow, onKey, pitchClass, type KeyboardWindow,
 import { isMajorLike, type DeclaredKey } from './keys.js';
 import { mod } from '../util/errors.js';
 import { noteIdOf, type NoteContext, type Speller } from './speller.js';
+import { chromaAt, HomeKey, nameKey, windowCentreOf, type Key, type NamingContext } from './key-names.js';
+
+export { signatureOf, windowCentreOf, type Key } from './key-names.js';
 
 /** Parameters of the following speller (all have defaults; the setup file may change them). */
 export interface FollowParameters {
@@ -47,7 +50,8 @@ export interface FollowParameters {
    * a position on the line of fifths: the name whose window centre is nearer wins. 4 gives the names
    * of Baroque keyboard music (C♯ and F♯ major, C♯, D♯ and G♯ minor, but A♭ major and B♭ minor);
    * 0 gives D♭ and G♭ major and E♭ minor. Once a key is known, a new key takes the name nearer it;
-   * with no key declared, the piece's home key keeps its name from here (see `HOME_NOTES`).
+   * with no key declared, the piece's home key keeps its name from here (see `HOME_NOTES` in
+   * key-names.ts).
    */
   readonly namingCentre: number;
   /**
@@ -71,12 +75,6 @@ export interface FollowParameters {
    */
   readonly shortHalfLifeMs: number;
   readonly shortShare: number;
-}
-
-/** A key as the follower estimates it: a tonic on the line of fifths and a mode. */
-export interface Key {
-  readonly tonic: number;
-  readonly mode: 'major' | 'minor';
 }
 
 export const DEFAULT_FOLLOW: FollowParameters = {
@@ -117,71 +115,8 @@ const HOME_PULL = 2;
 /** Where the speller starts when no key is declared. */
 const GUESS: Key = { tonic: 0, mode: 'major' };
 
-/** Keys are written with at most seven sharps or flats: signatures −7…+7 (C♭ major … C♯ major). */
-const MAX_SIGNATURE = 7;
-/**
- * Past seven accidentals, each accidental costs one fifth of distance in naming. On the sharp side a
- * key up to two fifths from the one in force may take up to nine sharps (G♯ major, the dominant of
- * C♯ major, and from there D♯ major; G♯ major from F♯ major); on the flat side a key whose window
- * lies within four fifths of the key in force's may take eight flats if it is minor (D♭ minor,
- * the minor subdominant of A♭ major, also from F minor), and any key with eight accidentals one
- * fifth from the key in force (F♭ major from C♭ major). Further keys only as below.
- */
-const BEYOND_COST = 1;
-const EIGHTH_REACH = 4;
-const NEAR_SHARP_REACH = 2;
-const NEAR_SHARP_MOST = 9;
-/** The most accidentals a key named past seven may have (D♯ major, nine; A♯ major, ten). */
-const MAX_FAR_SIGNATURE = 10;
-/** The same from a remote declared key: E♯ major, eleven sharps, is the dominant of A♯ minor. */
-const MAX_DECLARED_SIGNATURE = 11;
-/**
- * When the key was declared, keys are named nearest it; when it is a remote key (its window
- * `REMOTE_KEY` fifths or more from home), names may go to `MAX_DECLARED_SIGNATURE` accidentals (D♯
- * major, the dominant of G♯ major, from a declared C♯ major), at `BEYOND_COST` per accidental
- * past seven: a piece declared in a remote key keeps its side of the circle through its
- * modulations (E♯ minor from D♯ minor, not F minor), while one declared in E♭ major that moves to
- * E major is not read in F♭ major.
- */
-const REMOTE_KEY = 4;
-/**
- * With no key declared, keys past seven sharps (up to `MAX_FAR_SIGNATURE`) are named when the
- * music's region (the key's window centre averaged over time, halving every `REGION_HALF_LIFE_MS`)
- * lies at `SHARP_REGION` or beyond on the line of fifths (F♯ major, G♯ minor and sharper) and the
- * key lies within `SHARP_REACH` fifths of the one in force: a piece in C♯ major names its mediant
- * E♯ minor and its V/vi D♯ major, as keyboard music in the sharpest keys writes them (common
- * practice, from memory), instead of falling to F minor and E♭ major and staying on the flat side.
- * Past seven flats only the old rule applies (measured: letting flats go as far lost up to six
- * points on pieces in five flats).
- */
-const SHARP_REGION = 8;
-const SHARP_REACH = 4;
+/** The region's half-life (see `SHARP_REGION` in key-names.ts). */
 const REGION_HALF_LIFE_MS = 60_000;
-
-/**
- * With no key declared, the piece's home key is the key that has been in force for the most notes,
- * the n-th note heard counting 1 / (1 + n / `HOME_NOTES`): a piece states its key first, so the
- * opening outweighs a long second half in the dominant. When the home key's name, as the keys have
- * been named so far, is not its name from the naming centre (D♭ major where the naming centre
- * says C♯ major, because the piece was first heard in E♯ minor and that was named F minor), every
- * key from then on is named 12 fifths the other way, which renames the home key. Not when the key
- * in force would then pass seven accidentals, nor when the home key is named with eight
- * accidentals and the key a fifth below it, of which it is likely the dominant, has been in force
- * for `DOMINANT_SHARE` of its notes or more (G♯ major in a C♯ major piece stays G♯, not A♭).
- * Measured on the corpora moved to every key (bench/every-key.ts).
- */
-const HOME_NOTES = 10;
-const DOMINANT_SHARE = 0.3;
-
-/** The flattest fifth of a key's diatonic set: major's tonic less one fifth, minor's less four (as keySignatureOf). */
-export function signatureOf(key: Key): number {
-  return key.tonic - (key.mode === 'major' ? 1 : 4);
-}
-
-/** The centre on the line of fifths of the key's window (as keyWindow: C major E♭..G♯, 2.5; A minor B♭..D♯, 3.5). */
-export function windowCentreOf(key: Key): number {
-  return key.tonic + (key.mode === 'major' ? 2.5 : 0.5);
-}
 
 /** A profile centred on its mean and scaled to unit length, so a correlation is one dot product. */
 function normalise(profile: readonly number[]): Float64Array {
@@ -233,9 +168,8 @@ export class FollowSpeller implements Speller {
   /** The keys of the group spelled last and when it began: the approach of the next notes. */
   private lastKeys: number[] = [];
   private lastOnset = -Infinity;
-  /** Notes heard since the start (or the last key declared), and per key (chroma, +12 if minor) its share of them while it was in force (see `HOME_NOTES`). */
-  private notesHeard = 0;
-  private readonly homeCounts = new Float64Array(24);
+  /** The piece's home key, counted since the start or the last key declared (see `HOME_NOTES` in key-names.ts). */
+  private readonly home = new HomeKey();
   /** Per chroma: +1 when it last moved up a semitone to the next note, −1 down; and when. */
   private readonly resolvedDir = new Float64Array(12);
   private readonly resolvedT = new Float64Array(12).fill(-Infinity);
@@ -261,8 +195,7 @@ export class FollowSpeller implements Speller {
     this.resolvedT.fill(-Infinity);
     this.softCentre = NaN;
     this.region = NaN;
-    this.notesHeard = 0;
-    this.homeCounts.fill(0);
+    this.home.reset();
   }
 
   /**
@@ -393,7 +326,8 @@ export class FollowSpeller implements Speller {
     const currentScore = this.correlation(chromaAt(this.current.tonic), this.current.mode, norm) - this.homeCost(this.current);
     if (this.candidatesFor !== this.current || this.candidatesGuessing !== this.guessing) {
       this.candidatesGuessing = this.guessing;
-      this.candidates = MODES.flatMap((mode) => Array.from({ length: 12 }, (_, chroma) => this.spelledKey(chroma, mode)));
+      const at = this.naming();
+      this.candidates = MODES.flatMap((mode) => Array.from({ length: 12 }, (_, chroma) => nameKey(chroma, mode, at)));
       this.candidatesFor = this.current;
     }
     let best: Key | undefined;
@@ -424,95 +358,28 @@ export class FollowSpeller implements Speller {
     }
   }
 
-  /**
-   * The name of a key (tonic chroma and mode): of its enharmonic names (F♯ or G♭ major) the one
-   * whose window is nearer the current key's, or, while the current key is only a guess, nearer the
-   * naming centre; ties go sharpward. Keys are written with at most seven sharps or flats; a key
-   * near the one in force may take more (G♯ major from C♯ minor, D♭ minor from A♭ major: see
-   * `BEYOND_COST` and `mayGoBeyond`), and the next key found comes back within seven when it can.
-   * When the player declared the key, names are taken nearest the declared key instead, and from a
-   * remote declared key up to eleven accidentals (see `MAX_DECLARED_SIGNATURE`).
-   */
-  private spelledKey(tonicChroma: number, mode: Key['mode']): Key {
-    const base = mod(7 * tonicChroma, 12);
-    const from = this.guessing ? this.p.namingCentre : (this.declaredCentre ?? windowCentreOf(this.current));
-    let best: Key | undefined;
-    let bestCost = Infinity;
-    for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
-      const key: Key = { tonic, mode };
-      const accidentals = Math.abs(signatureOf(key) + 1);
-      const beyond = Math.max(0, accidentals - MAX_SIGNATURE);
-      if (beyond > 0 && !this.mayGoBeyond(key, accidentals)) continue;
-      const cost = Math.abs(windowCentreOf(key) - from) + BEYOND_COST * beyond + 1e-3 * Math.abs(windowCentreOf(key) - this.p.namingCentre);
-      if (cost <= bestCost) {
-        best = key;
-        bestCost = cost;
-      }
-    }
-    return best ?? { tonic: base, mode };
+  /** Where the speller stands, for naming keys. */
+  private naming(): NamingContext {
+    return { guessing: this.guessing, current: this.current, declaredCentre: this.declaredCentre, homeCentre: this.homeCentre, region: this.region, namingCentre: this.p.namingCentre };
   }
 
-  /** Moves the region towards the key in force (see `SHARP_REGION`). */
-  private followRegion(time: number): void {
-    if (this.guessing) return;
-    const centre = windowCentreOf(this.current);
-    if (Number.isNaN(this.region)) this.region = centre;
-    else this.region += (1 - 0.5 ** ((time - this.regionTime) / REGION_HALF_LIFE_MS)) * (centre - this.region);
-    this.regionTime = time;
-  }
-
-  /** Whether a key past seven accidentals may be named (see `BEYOND_COST`, `MAX_FAR_SIGNATURE`, `MAX_DECLARED_SIGNATURE`). */
-  private mayGoBeyond(key: Key, accidentals: number): boolean {
-    if (this.guessing) return false;
-    const declared = this.declaredCentre;
-    if (declared !== undefined && Math.abs(declared - this.homeCentre) >= REMOTE_KEY) return accidentals <= MAX_DECLARED_SIGNATURE;
-    if (this.region >= SHARP_REGION && signatureOf(key) > 0 && accidentals <= MAX_FAR_SIGNATURE && Math.abs(windowCentreOf(key) - windowCentreOf(this.current)) <= SHARP_REACH) return true;
-    if (signatureOf(key) > 0) return accidentals <= NEAR_SHARP_MOST && Math.abs(key.tonic - this.current.tonic) <= NEAR_SHARP_REACH;
-    if (accidentals !== MAX_SIGNATURE + 1) return false;
-    if (Math.abs(key.tonic - this.current.tonic) <= 1) return true;
-    return key.mode === 'minor' && Math.abs(windowCentreOf(key) - windowCentreOf(this.current)) <= EIGHTH_REACH;
-  }
-
-  /** Counts `count` new notes for the key in force (see `HOME_NOTES`). */
-  private countHome(count: number): void {
-    this.notesHeard += count;
-    if (this.guessing) return;
-    this.homeCounts[chromaAt(this.current.tonic) + (this.current.mode === 'minor' ? 12 : 0)]! += count / (1 + this.notesHeard / HOME_NOTES);
-  }
-
-  /** Renames every key 12 fifths the other way if the home key is misnamed (see `HOME_NOTES`). */
+  /** Renames every key 12 fifths the other way when the home key is misnamed (see `HOME_NOTES` in key-names.ts). */
   private reframe(): void {
-    if (this.guessing || this.declaredCentre !== undefined) return;
-    let home = 0;
-    for (let i = 1; i < 24; i++) if (this.homeCounts[i]! > this.homeCounts[home]!) home = i;
-    const mode = home < 12 ? 'major' : 'minor';
-    const named = this.spelledKey(home % 12, mode);
-    const shift = this.namedFromCentre(named) - named.tonic;
+    const shift = this.home.shift(this.naming());
     if (shift === 0) return;
-    if (Math.abs(signatureOf({ tonic: this.current.tonic + shift, mode: this.current.mode }) + 1) > MAX_SIGNATURE) return;
-    if (Math.abs(signatureOf(named) + 1) === MAX_SIGNATURE + 1) {
-      const below = chromaAt(named.tonic - 1);
-      if (Math.max(this.homeCounts[below]!, this.homeCounts[below + 12]!) >= DOMINANT_SHARE * this.homeCounts[home]!) return;
-    }
     this.current = { tonic: this.current.tonic + shift, mode: this.current.mode };
     for (let c = 0; c < 12; c++) this.chromaF[c]! += shift;
     this.softCentre += shift;
     this.region += shift;
   }
 
-  /** The tonic of `key`'s name within seven accidentals nearest the naming centre. */
-  private namedFromCentre(key: Key): number {
-    let best = key.tonic;
-    let bestDistance = Infinity;
-    for (let tonic = key.tonic - 24; tonic <= key.tonic + 24; tonic += 12) {
-      const other: Key = { tonic, mode: key.mode };
-      const distance = Math.abs(windowCentreOf(other) - this.p.namingCentre);
-      if (Math.abs(signatureOf(other) + 1) <= MAX_SIGNATURE && distance < bestDistance) {
-        best = tonic;
-        bestDistance = distance;
-      }
-    }
-    return best;
+  /** Moves the region towards the key in force (see `SHARP_REGION` in key-names.ts). */
+  private followRegion(time: number): void {
+    if (this.guessing) return;
+    const centre = windowCentreOf(this.current);
+    if (Number.isNaN(this.region)) this.region = centre;
+    else this.region += (1 - 0.5 ** ((time - this.regionTime) / REGION_HALF_LIFE_MS)) * (centre - this.region);
+    this.regionTime = time;
   }
 
   /** The key the speller believes it is in. */
@@ -541,7 +408,7 @@ export class FollowSpeller implements Speller {
         this.shortWeights[mod(n.key, 12)]! += 1;
       }
       this.heard += notes.length;
-      this.countHome(notes.length);
+      this.home.count(notes.length, this.current, this.guessing);
       this.update();
       this.reframe();
       this.followRegion(notes[0]!.time);
@@ -686,10 +553,6 @@ export class FollowSpeller implements Speller {
   currentWindow(): KeyboardWindow {
     return keyboardWindow(Math.round(this.centre() - 5.5));
   }
-}
-
-function chromaAt(fifths: number): number {
-  return mod(7 * fifths, 12);
 }
 
 /** The line-of-fifths position of `chroma` nearest `centre`, ties going sharpward (as a window's spelling). */
