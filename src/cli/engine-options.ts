@@ -1,4 +1,5 @@
 import { Option, type Command } from 'commander';
+import { KEY_NAMES, type KeyNames } from '../spelling/key-names.js';
 import { readScoreFile } from '../presets/score-file.js';
 import { ScoreSpeller } from '../score/score-speller.js';
 import { checkSetPlays, loadSampleSet, type LoadedSampleSet } from '../audio/sample-set.js';
@@ -29,6 +30,7 @@ export interface EngineCliOptions {
   ref?: string;
   spelling?: Strategy;
   key?: string;
+  keyNames?: KeyNames;
   window?: string;
   gather?: number;
   mode?: OutputMode;
@@ -53,6 +55,7 @@ export function addEngineOptions(command: Command): Command {
     .option('--ref <note=hz>', 'reference pitch, as A4=415 (default: the preset’s, else A4=440)')
     .addOption(new Option('--spelling <strategy>', 'how keys are spelled (default: follow)').choices([...STRATEGIES]))
     .option('--key <key>', 'the key for --spelling key, or where follow starts, as "D minor"')
+    .addOption(new Option('--key-names <names>', 'follow: how keys of five to seven accidentals are named, baroque (C# major, D# minor) or later (Db major, Eb minor) (default: baroque)').choices(Object.keys(KEY_NAMES)))
     .option('--window <from..to>', 'the 12 spellings for --spelling fixed (default: Eb..G#)')
     .option('--gather <ms>', 'live: wait this long for the rest of a chord (default: 0)', numberOption('--gather', 0, 100))
     .addOption(new Option('--mode <mode>', 'how the synth is retuned (default: bend)').choices([...OUTPUT_MODE_IDS]))
@@ -127,13 +130,15 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const strategy: Strategy = cli.spelling ?? (windowGiven ? 'fixed' : (json?.spelling?.strategy ?? 'follow'));
   const strategyEntry = STRATEGY_ENTRIES[strategy];
   if (cli.key !== undefined && !strategyEntry.usesKey) throw new UserError(`--key has no effect with --spelling ${strategy}; use --spelling key or follow, or --window for fixed spellings`, 2);
+  if (cli.keyNames !== undefined && strategy !== 'follow') throw new UserError(`--key-names has no effect with --spelling ${strategy}; it names the keys follow finds`, 2);
   if (windowGiven && !strategyEntry.usesWindow) throw new UserError(`--window has no effect with --spelling ${strategy}; it sets the spellings of --spelling fixed`, 2);
   const key = cli.key !== undefined ? optionValue(() => parseKey(cli.key!, '--key')) : setup?.key;
   if (strategy === 'key' && key === undefined) throw new UserError('--spelling key needs --key, as in --key "D minor"', 2);
   const window = cli.window !== undefined ? optionValue(() => parseWindow(cli.window!, '--window')) : setup?.window;
   // A score given here is read now; a setup's was read (from the setup's folder) when it was checked.
   const score = cli.score !== undefined ? readScoreFile(cli.score) : setup?.score;
-  const base = createStrategy({ strategy, window, key, follow: json?.spelling?.follow });
+  const follow = cli.keyNames === undefined ? json?.spelling?.follow : { ...json?.spelling?.follow, namingCentre: KEY_NAMES[cli.keyNames] };
+  const base = createStrategy({ strategy, window, key, follow });
   const speller = new ControlledSpeller(score === undefined ? base : new ScoreSpeller(score, base), setup?.splits ?? [], key);
   if (isAdaptive(preset.tuning) && (mode === 'mts-octave' || mode === 'samples')) {
     throw new UserError(`${preset.id} gives every note its own pitch: use --mode bend or mts-note (--mode ${mode} tunes key classes or fixed samples, so held notes would move)`, 2);

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { KEY_NAMES, type KeyNames } from '../spelling/key-names.js';
 import { parseWindow } from '../pitch/index.js';
 import { OUTPUT_MODE_IDS } from '../router/output-modes.js';
 import { ACTION_NAMES } from '../spelling/control-map.js';
@@ -90,7 +91,10 @@ export const setupSchema = z.strictObject({
           localHalfLifeMs: z.number().positive().max(60_000).optional(),
           localShare: z.number().min(0).max(1).optional(),
           chordCompactness: z.number().min(0).max(10).optional(),
+          keyNames: z.enum(Object.keys(KEY_NAMES) as [KeyNames, ...KeyNames[]]).optional(),
         })
+        // The names become the naming centre the follow speller takes (see KEY_NAMES).
+        .transform(({ keyNames, ...rest }) => (keyNames === undefined ? rest : { ...rest, namingCentre: KEY_NAMES[keyNames] }))
         .optional(),
     })
     .optional(),

@@ -75,6 +75,15 @@ export function windowCentreOf(key: Key): number {
 }
 
 
+/**
+ * The two ways keyboard music names the keys of five to seven accidentals, as naming centres: the
+ * names of Baroque keyboard music (C♯ major, D♯ minor: 4) and those of later music (D♭ major, E♭
+ * minor: 3). Both name F♯ and B major, G♯, C♯ and B♭ minor and A♭ major alike (common practice,
+ * from memory). Tested in test/spelling/key-names.test.ts.
+ */
+export const KEY_NAMES = { baroque: 4, later: 3 } as const;
+export type KeyNames = keyof typeof KEY_NAMES;
+
 /** What naming a key depends on: where the speller stands now. */
 export interface NamingContext {
   /** True while the key in force is only the starting guess: names come from the naming centre. */

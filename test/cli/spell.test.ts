@@ -86,6 +86,39 @@ describe('diesis spell', () => {
   });
 });
 
+describe('--key-names and the setup\'s keyNames', () => {
+  it('name a piece in D♭ major D♭ (later music) or C♯ (Baroque keyboard music, the default), with no key given', async () => {
+    const { writeMidiFile } = await import('../../src/render/smf.js');
+    const { writeFileSync } = await import('node:fs');
+    const { tempDir } = await import('../support/temp.js');
+    // Our own phrase in D♭ major, four times: I–IV–V6–I–vi–ii–V–I.
+    const chords = [[49, 65, 68, 73], [54, 66, 70, 73], [56, 65, 68, 72], [49, 65, 68, 73], [46, 65, 70, 73], [51, 63, 66, 70], [56, 60, 63, 68], [49, 65, 68, 73]];
+    const events: Array<{ tick: number; data: number[] }> = [];
+    let tick = 0;
+    for (let round = 0; round < 4; round++)
+      for (const keys of chords) {
+        keys.forEach((k) => events.push({ tick, data: [0x90, k, 80] }));
+        keys.forEach((k) => events.push({ tick: tick + 470, data: [0x80, k, 0] }));
+        tick += 480;
+      }
+    events.sort((a, b) => a.tick - b.tick);
+    const dir = tempDir('diesis-key-names-');
+    const file = join(dir, 'phrase.mid');
+    writeFileSync(file, writeMidiFile({ ticksPerBeat: 480 }, [], [events]));
+    const tonic = async (...args: string[]): Promise<Set<string>> =>
+      new Set((await runCli('spell', file, '--json', ...args)).stdout.trim().split('\n').map((l) => (JSON.parse(l) as Row).spelling).filter((n) => n.startsWith('C#') || n.startsWith('Db')).map((n) => n.replace(/\d+$/u, '')));
+    expect(await tonic()).toEqual(new Set(['C#']));
+    expect(await tonic('--key-names', 'later')).toEqual(new Set(['Db']));
+    const setup = join(dir, 'later.json');
+    writeFileSync(setup, JSON.stringify({ spelling: { follow: { keyNames: 'later' } } }));
+    expect(await tonic('--setup', setup)).toEqual(new Set(['Db']));
+    expect(await tonic('--setup', setup, '--key-names', 'baroque')).toEqual(new Set(['C#']));
+    const refused = await runCli('spell', file, '--spelling', 'fixed', '--key-names', 'later');
+    expect(refused.code).toBe(2);
+    expect(refused.stderr.trim()).toBe('diesis: --key-names has no effect with --spelling fixed; it names the keys follow finds');
+  });
+});
+
 describe('--gather applies to files as it does live', () => {
   /**
    * Our own phrase, written as a file (480 ticks a beat, 500 ms a beat): A minor, its dominant, A

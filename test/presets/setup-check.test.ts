@@ -66,6 +66,13 @@ describe('check sees what play would refuse, all of it at once, with lines', () 
     expect(resolveEngineCli({ setup: join(dir, 'setup.json') }).preset.name).toBe('Mine');
   });
 
+  it('spelling.follow.keyNames takes baroque or later, and nothing else', () => {
+    expect(checkSetup('{ "spelling": { "follow": { "keyNames": "later" } } }', 's.json').problems).toEqual([]);
+    const bad = checkSetup('{ "spelling": { "follow": { "keyNames": "modern" } } }', 's.json').problems;
+    expect(bad.map((p) => p.path)).toEqual(['$.spelling.follow.keyNames']);
+    expect(bad[0]!.message).toMatch(/baroque.*later/u);
+  });
+
   it('a MIDI file or another binary file given as a setup is named for what it is', () => {
     // A Standard MIDI File begins with the chunk type "MThd" (MIDI 1.0, Standard MIDI Files).
     expect(() => checkSetup('MThd\u0000\u0000\u0000\u0006\u0000\u0000', 'piece.mid')).toThrow(/^piece\.mid: a Standard MIDI File, not a JSON setup/u);

@@ -1,5 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { HomeKey, nameKey, tonicNearest, type Key, type NamingContext } from '../../src/spelling/key-names.js';
+import { HomeKey, KEY_NAMES, nameKey, tonicNearest, type Key, type NamingContext } from '../../src/spelling/key-names.js';
+import { formatKey, parseKey } from '../../src/spelling/keys.js';
+import { pitchClass } from '../../src/pitch/index.js';
 
 // Key names as keyboard music writes them (common practice, no source): within seven sharps or
 // flats, a modulation named from the key it leaves; tonics on the line of fifths (C = 0, G = 1 …).
@@ -57,5 +59,25 @@ describe('the home key', () => {
     for (let i = 0; i < 10; i++) home.count(4, C_SHARP_MAJOR, false);
     for (let i = 0; i < 100; i++) home.count(4, key(8, 'major'), false);
     expect(home.shift(at(key(8, 'major')))).toBe(0);
+  });
+});
+
+describe('the two sets of key names', () => {
+  // How keyboard music names its keys of five to seven accidentals (from memory): Bach's preludes
+  // and fugues in every key use C♯ major and D♯ minor (and E♭ minor once); later music D♭ major and
+  // E♭ minor; both F♯ and B major, G♯, C♯ and B♭ minor, A♭ and E♭ major.
+  const named = (names: keyof typeof KEY_NAMES, text: string): string => {
+    const k = parseKey(text);
+    return formatKey({ tonic: pitchClass(tonicNearest({ tonic: k.tonic.fifths, mode: k.mode === 'minor' ? 'minor' : 'major' }, KEY_NAMES[names])), mode: k.mode });
+  };
+  it('baroque: C♯ major and D♯ minor', () => {
+    expect(['Db major', 'Gb major', 'Cb major', 'Ab minor', 'Eb minor', 'A# minor', 'Ab major', 'C# minor'].map((t) => named('baroque', t))).toEqual([
+      'C# major', 'F# major', 'B major', 'G# minor', 'D# minor', 'Bb minor', 'Ab major', 'C# minor',
+    ]);
+  });
+  it('later: D♭ major and E♭ minor, the rest alike', () => {
+    expect(['C# major', 'Gb major', 'Cb major', 'Ab minor', 'D# minor', 'A# minor', 'Ab major', 'C# minor'].map((t) => named('later', t))).toEqual([
+      'Db major', 'F# major', 'B major', 'G# minor', 'Eb minor', 'Bb minor', 'Ab major', 'C# minor',
+    ]);
   });
 });
