@@ -19,7 +19,7 @@ for (const m of loadCorpus(corpusDir(name))) {
   speller.spell = (notes) => {
     const r = orig(notes);
     const k = speller.currentKey();
-    notes.forEach(() => keys.push(`${formatPitchClass(k.tonic)} ${k.mode}`));
+    notes.forEach(() => keys.push(k ? `${formatPitchClass(k.tonic)} ${k.mode}` : '(no key yet)'));
     return r;
   };
   const spelled = spellEvents(m.midi.events, speller);

@@ -21,7 +21,7 @@ export function startingKey(m: Movement): Key {
   const speller = new FollowSpeller(DEFAULT_FOLLOW);
   const events = m.midi.events.filter((e) => ((e.data[0] ?? 0) & 0xf0) === 0x90 && (e.data[2] ?? 0) > 0).slice(0, 24);
   spellEvents(events, speller);
-  const k = speller.currentKey();
+  const k = speller.currentKey() ?? { tonic: { fifths: 0 }, mode: 'major' }; // C major if 24 notes named no key
   return { tonic: k.tonic.fifths, mode: k.mode === 'minor' ? 'minor' : 'major' };
 }
 

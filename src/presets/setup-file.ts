@@ -237,6 +237,7 @@ function spellingProblems(json: SetupJson, problems: Problem[]): { window: Keybo
   const key = spelling.key === undefined ? undefined : collecting(problems, '$.spelling.key', () => parseKey(spelling.key!));
   if (spelling.window !== undefined && !entry.usesWindow) problems.push({ path: '$.spelling.window', message: `has no effect with strategy "${strategy}" (it sets the spellings of "fixed")` });
   if (spelling.key !== undefined && !entry.usesKey) problems.push({ path: '$.spelling.key', message: `has no effect with strategy "${strategy}"` });
+  if (spelling.follow !== undefined && strategy !== 'follow') problems.push({ path: '$.spelling.follow', message: `has no effect with strategy "${strategy}" (it steers "follow")` });
   if (strategy === 'key' && spelling.key === undefined) problems.push({ path: '$.spelling', message: 'strategy "key" needs a "key", such as "D minor"' });
   return { window, key };
 }

@@ -383,7 +383,8 @@ export class FollowSpeller implements Speller {
   }
 
   /** The key the speller believes it is in. */
-  currentKey(): DeclaredKey {
+  currentKey(): DeclaredKey | undefined {
+    if (this.guessing) return undefined; // nothing heard has named a key yet: the starting guess is no key to show
     return { tonic: pitchClass(this.current.tonic), mode: this.current.mode };
   }
 

@@ -25,21 +25,23 @@ const ACCEPTED = '"D minor", "Dm", "D major", "F# minor", "Bb major", "E flat ma
 /**
  * Parses a key as musicians write it: `D minor`, `d minor`, `Dm`, `Dmin`, `D`, `D major`, `Dmaj`,
  * `F# minor`, `Bb major`, `F♯ minor`, `E flat major`, `F sharp minor`, `E phrygian`; a tonic alone
- * is major; German `C dur`, `d-moll`. Refused: a chord symbol's `M` (`DM`: major in chord symbols,
+ * is major; German names (`C dur`, `d-moll`, `B-dur` for B♭ major, `fis-moll`: see germanKey). Refused: a chord symbol's `M` (`DM`: major in chord symbols,
  * minor to some readers) or `-` (`D-`: minor in chord symbols, a slip to others), a
  * lowercase tonic alone (`d`: minor in some traditions, major in others) and keys of more than
  * seven sharps or flats (named with their enharmonic), each with the accepted forms.
  */
 export function parseKey(text: string, what = 'key'): DeclaredKey {
+  const german = germanKey(text);
+  if (german) return checkedKey(german, text, what);
   const words = text.trim().replace(/[\s-]*flat\b/giu, 'b').replace(/[\s-]*sharp\b/giu, '#');
   const match = /^([A-Ga-g])([#b♯♭x𝄪𝄫]*)(?:\s*-?\s*)([A-Za-z]*)$/u.exec(words);
   if (!match) throw new UserError(`${what} "${text}" is not a key: write a tonic and a mode, as in ${ACCEPTED}`);
   const [, letter = '', accidentals = '', modeText = ''] = match;
   if (modeText === '' && /-\s*$/u.test(words)) {
     const tonic = `${letter.toUpperCase()}${accidentals}`;
-    throw new UserError(`${what} "${text}" is ambiguous: "-" means minor in chord symbols and may be a slip; write "${tonic} minor" or "${tonic} major"`);
+    throw new UserError(`${what} "${text}" is ambiguous: "-" means minor in chord symbols and may be a slip; write "${tonic} minor" or "${tonic} major" (accepted: ${ACCEPTED})`);
   }
-  if (modeText === 'M') throw new UserError(`${what} "${text}" is ambiguous: "M" means major in chord symbols; write "${letter.toUpperCase()}${accidentals} major" or "${letter.toUpperCase()}${accidentals} minor"`);
+  if (modeText === 'M') throw new UserError(`${what} "${text}" is ambiguous: "M" means major in chord symbols; write "${letter.toUpperCase()}${accidentals} major" or "${letter.toUpperCase()}${accidentals} minor" (accepted: ${ACCEPTED})`);
   if (modeText === '' && letter === letter.toLowerCase()) {
     const tonic = `${letter.toUpperCase()}${accidentals}`;
     throw new UserError(`${what} "${text}" is ambiguous: a lowercase tonic alone means minor to some and major to others; write "${tonic} major" or "${tonic} minor" (accepted: ${ACCEPTED})`);
@@ -47,7 +49,28 @@ export function parseKey(text: string, what = 'key'): DeclaredKey {
   const lower = modeText.toLowerCase();
   const mode = lower === '' ? 'major' : (ALIASES[lower] ?? (MODES as readonly string[]).find((m) => m === lower));
   if (mode === undefined) throw new UserError(`${what} "${text}": unknown mode "${modeText}" (use ${MODES.join(', ')}, or m, min, maj; accepted: ${ACCEPTED})`);
-  const key: DeclaredKey = { tonic: parsePitchClass(`${letter.toUpperCase()}${accidentals}`, what), mode: mode as Mode };
+  return checkedKey({ tonic: parsePitchClass(`${letter.toUpperCase()}${accidentals}`, what), mode: mode as Mode }, text, what);
+}
+
+/**
+ * A key named in German, `dur` or `moll` after a German note name: B is B♭ and H is B; `-is`
+ * raises and `-es` (`-s` after A and E) lowers (`fis-moll`, `Es-dur`, `As-dur`, `B-dur`: common
+ * practice, no source). Undefined when `text` is not such a name.
+ */
+function germanKey(text: string): DeclaredKey | undefined {
+  const match = /^([a-h])(isis|is|eses|es|s)?\s*-?\s*(dur|moll)$/iu.exec(text.trim());
+  if (!match) return undefined;
+  const [, letter = '', suffix = '', word = ''] = match;
+  const lower = letter.toLowerCase();
+  if (suffix.toLowerCase() === 's' && lower !== 'a' && lower !== 'e') return undefined;
+  if (lower === 'b' && suffix !== '') return undefined; // B is already B♭; "Bes" and the like are not written
+  const accidentals = lower === 'b' ? 'b' : { '': '', is: '#', isis: '##', es: 'b', eses: 'bb', s: 'b' }[suffix.toLowerCase()] ?? '';
+  const name = `${lower === 'h' ? 'B' : lower.toUpperCase()}${accidentals}`;
+  return { tonic: parsePitchClass(name), mode: word.toLowerCase() === 'dur' ? 'major' : 'minor' };
+}
+
+/** `key`, refused if it has more than seven sharps or flats (named with its enharmonic). */
+function checkedKey(key: DeclaredKey, text: string, what: string): DeclaredKey {
   const signature = keySignatureOf(key) + 1;
   if (Math.abs(signature) > MAX_KEY_ACCIDENTALS) {
     const enharmonic: DeclaredKey = { tonic: { fifths: key.tonic.fifths - 12 * Math.sign(signature) }, mode: key.mode };

@@ -73,6 +73,11 @@ describe('check sees what play would refuse, all of it at once, with lines', () 
     expect(bad[0]!.message).toMatch(/baroque.*later/u);
   });
 
+  it('spelling.follow with another strategy is a problem, as spelling.key is', () => {
+    const problems = checkSetup('{ "spelling": { "strategy": "fixed", "follow": { "keyNames": "later" } } }', 's.json').problems;
+    expect(problems.map((p) => [p.path, p.message])).toEqual([['$.spelling.follow', 'has no effect with strategy "fixed" (it steers "follow")']]);
+  });
+
   it('a MIDI file or another binary file given as a setup is named for what it is', () => {
     // A Standard MIDI File begins with the chunk type "MThd" (MIDI 1.0, Standard MIDI Files).
     expect(() => checkSetup('MThd\u0000\u0000\u0000\u0006\u0000\u0000', 'piece.mid')).toThrow(/^piece\.mid: a Standard MIDI File, not a JSON setup/u);
