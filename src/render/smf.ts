@@ -159,6 +159,7 @@ function readTrack(c: SmfCursor, end: number, track: number, into: TrackItem[], 
 /** Reads a Standard MIDI File (format 0, 1 or 2; the tempo map applied to every track). */
 export function readMidiFile(bytes: Uint8Array, file: string): MidiFileContent {
   const c = new SmfCursor(bytes, file);
+  if (bytes.length > 0 && (bytes[0] === 0x7b || bytes[0] === 0x2f)) throw new UserError(`${file}: a JSON file, not a Standard MIDI File (a setup goes with --setup)`); // "{" or "//": a setup or tuning
   if (bytes.length < 14 || c.text(4) !== 'MThd') throw new UserError(`${file}: not a readable Standard MIDI File (it does not begin with an MThd header)`);
   c.at = 4;
   const headerLength = c.uint(4);

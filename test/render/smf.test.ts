@@ -75,6 +75,8 @@ describe('reading Standard MIDI Files: strict where SMF 1.0 is strict', () => {
   it('refuses a header that promises more tracks than the file holds, and one that is not MThd', () => {
     expect(readError(file(header(1, 2), chunk('MTrk', END)))).toMatch(/^take\.mid: byte 10: the header promises 2 tracks, the file holds 1$/u);
     expect(readError(file(ascii('RIFF'), u32(6), [0, 0, 0, 1, 1, 0xe0]))).toMatch(/does not begin with an MThd header/u);
+    // A setup given where the piece goes: JSON text (RFC 8259 objects begin with "{"), named for what it is.
+    expect(readError(file(ascii('{ "tuning": "meantone-1-4" }')))).toMatch(/^take\.mid: a JSON file, not a Standard MIDI File \(a setup goes with --setup\)$/u);
   });
 });
 
