@@ -11,9 +11,8 @@ import type { ModeSetting } from '../router/output.js';
 import { parseChannels } from '../text/channels.js';
 import { ControlMap } from '../spelling/control-map.js';
 import { ControlledSpeller } from '../spelling/controlled.js';
-import { formatKey, parseKey, type DeclaredKey } from '../spelling/keys.js';
-
-const C_MAJOR: DeclaredKey = { tonic: { fifths: 0 }, mode: 'major' };
+import { formatKey, parseKey } from '../spelling/keys.js';
+import type { FollowParameters } from '../spelling/follow.js';
 import { createStrategy, STRATEGIES, STRATEGY_ENTRIES, type Strategy } from '../spelling/strategy.js';
 import { A440, isAdaptive, parseReference } from '../tuning/index.js';
 import { UserError } from '../util/errors.js';
@@ -74,7 +73,7 @@ export function addEngineOptions(command: Command): Command {
 }
 
 export interface ResolvedEngine {
-  /** The spelling in force, in words: `follow, starting in D minor`, `fixed in E♭..G♯`, `the key of D minor`. */
+  /** The spelling in force, in words: `follow, starting in D minor`, `follow, no key given, later key names`, `fixed in E♭..G♯`, `the key of D minor`. */
   readonly spellingLabel: string;
   readonly preset: TuningPreset;
   readonly setup: SetupFile | undefined;
@@ -137,7 +136,7 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   const window = cli.window !== undefined ? optionValue(() => parseWindow(cli.window!, '--window')) : setup?.window;
   // A score given here is read now; a setup's was read (from the setup's folder) when it was checked.
   const score = cli.score !== undefined ? readScoreFile(cli.score) : setup?.score;
-  const follow = cli.keyNames === undefined ? json?.spelling?.follow : { ...json?.spelling?.follow, namingCentre: KEY_NAMES[cli.keyNames] };
+  const follow: Partial<FollowParameters> | undefined = cli.keyNames === undefined ? json?.spelling?.follow : { ...json?.spelling?.follow, namingCentre: KEY_NAMES[cli.keyNames] };
   const base = createStrategy({ strategy, window, key, follow });
   const speller = new ControlledSpeller(score === undefined ? base : new ScoreSpeller(score, base), setup?.splits ?? [], key);
   if (isAdaptive(preset.tuning) && (mode === 'mts-octave' || mode === 'samples')) {
@@ -170,6 +169,10 @@ export function resolveEngineCli(cli: EngineCliOptions): ResolvedEngine {
   };
   if (sampleSet) checkSetPlays(sampleSet, { tuning: preset.tuning, tuningName: preset.name, reference: options.reference, mode: cli.mode ?? json?.output?.mode });
   const spellingLabel =
-    strategy === 'fixed' ? `fixed in ${formatRange(speller.currentWindow())}` : strategy === 'key' ? `the key of ${formatKey(key!)}` : `${strategy}, starting in ${formatKey(key ?? C_MAJOR)}`;
+    strategy === 'fixed'
+      ? `fixed in ${formatRange(speller.currentWindow())}`
+      : strategy === 'key'
+        ? `the key of ${formatKey(key!)}`
+        : `${strategy}, ${key ? `starting in ${formatKey(key)}` : 'no key given'}${follow?.namingCentre === KEY_NAMES.later ? ', later key names' : ''}`;
   return { spellingLabel, preset, setup, strategy, speller, options, sampleSet };
 }

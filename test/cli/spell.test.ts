@@ -109,6 +109,7 @@ describe('--key-names and the setup\'s keyNames', () => {
       new Set((await runCli('spell', file, '--json', ...args)).stdout.trim().split('\n').map((l) => (JSON.parse(l) as Row).spelling).filter((n) => n.startsWith('C#') || n.startsWith('Db')).map((n) => n.replace(/\d+$/u, '')));
     expect(await tonic()).toEqual(new Set(['C#']));
     expect(await tonic('--key-names', 'later')).toEqual(new Set(['Db']));
+    expect((await runCli('spell', file, '--key-names', 'later')).stdout).toMatch(/spelling follow, no key given, later key names\n/u);
     const setup = join(dir, 'later.json');
     writeFileSync(setup, JSON.stringify({ spelling: { follow: { keyNames: 'later' } } }));
     expect(await tonic('--setup', setup)).toEqual(new Set(['Db']));
