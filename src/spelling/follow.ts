@@ -149,6 +149,8 @@ const MODES = ['major', 'minor'] as const;
 export class FollowSpeller implements Speller {
   private readonly weights = new Float64Array(12);
   private readonly shortWeights = new Float64Array(12);
+  /** The notes heard, time-decayed as `weights` but without the starting guess. */
+  private readonly heardWeights = new Float64Array(12);
   private lastTime = 0;
   private current: Key;
   private readonly held = new Map<number, number>();
@@ -190,6 +192,7 @@ export class FollowSpeller implements Speller {
     const total = profile.reduce((a, b) => a + b, 0);
     profile.forEach((v, i) => (this.weights[(tonicChroma + i) % 12] = (this.p.initialWeight * v) / total));
     this.shortWeights.set(this.weights);
+    this.heardWeights.fill(0);
     this.localWeight = 0;
     this.chromaT.fill(-Infinity);
     this.resolvedT.fill(-Infinity);
@@ -246,6 +249,7 @@ export class FollowSpeller implements Speller {
       for (let i = 0; i < 12; i++) this.weights[i]! *= factor;
       const shortFactor = 0.5 ** ((time - this.lastTime) / this.p.shortHalfLifeMs);
       for (let i = 0; i < 12; i++) this.shortWeights[i]! *= shortFactor;
+      for (let i = 0; i < 12; i++) this.heardWeights[i]! *= factor;
       this.heard *= factor;
       this.lastTime = time;
     }
@@ -351,7 +355,13 @@ export class FollowSpeller implements Speller {
       }
     }
     // A guessed start gives way only once as many notes have been heard as it counts for.
-    if (this.guessing && this.heard < this.p.initialWeight) return;
+    // Meanwhile the notes are spelled around the keys that fit what has been heard (from two notes
+    // on), named from the naming centre, not around the guess: a piece that opens on a C♯ major
+    // triad hears C♯–E♯–G♯, not D♭–F–A♭.
+    if (this.guessing && this.heard < this.p.initialWeight) {
+      if (this.heard >= 2 && this.p.keySoftness > 0) this.softCentre = this.softOf(this.centred(this.heardWeights));
+      return;
+    }
     if (best && bestScore - currentScore > this.p.hysteresis) {
       this.current = best;
       this.guessing = false;
@@ -407,6 +417,7 @@ export class FollowSpeller implements Speller {
       for (const n of notes) {
         this.weights[mod(n.key, 12)]! += 1;
         this.shortWeights[mod(n.key, 12)]! += 1;
+        this.heardWeights[mod(n.key, 12)]! += 1;
       }
       this.heard += notes.length;
       this.home.count(notes.length, this.current, this.guessing);
