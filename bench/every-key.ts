@@ -7,7 +7,8 @@
 // [declared|undeclared]).
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { DEFAULT_FOLLOW, FollowSpeller, signatureOf, windowCentreOf, type FollowParameters, type Key } from '../src/spelling/follow.js';
+import { DEFAULT_FOLLOW, FollowSpeller, signatureOf, type FollowParameters, type Key } from '../src/spelling/follow.js';
+import { tonicNearest } from '../src/spelling/key-names.js';
 import { mod } from '../src/util/errors.js';
 import { parseWrittenSpellings, scoreSpelling, spellEvents } from './accuracy.js';
 import { CORPORA, corpusDir, loadCorpus, type CorpusName, type Movement } from './corpus.js';
@@ -27,14 +28,7 @@ export function startingKey(m: Movement): Key {
 
 /** The key `start` moved up by `semitones`, named within seven accidentals nearest `centre` (as the follow speller names a key it finds). */
 export function namedKey(start: Key, semitones: number, centre: number = DEFAULT_FOLLOW.namingCentre): Key {
-  const base = start.tonic + mod(7 * semitones, 12);
-  let best: Key | undefined;
-  for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
-    const key: Key = { tonic, mode: start.mode };
-    if (Math.abs(signatureOf(key) + 1) > 7) continue;
-    if (best === undefined || Math.abs(windowCentreOf(key) - centre) < Math.abs(windowCentreOf(best) - centre)) best = key;
-  }
-  return best!;
+  return { tonic: tonicNearest({ tonic: start.tonic + mod(7 * semitones, 12), mode: start.mode }, centre), mode: start.mode };
 }
 
 /**

@@ -128,24 +128,20 @@ export class SpellReport {
 
   /** For each black key, how many notes took each spelling (C♯ 120, D♭ 3 …). */
   blackKeys(): Array<{ chroma: number; spellings: Array<{ pitch: PitchClass; count: number }> }> {
-    return [1, 3, 6, 8, 10].map((chroma) => {
-      const counts = new Map<number, number>();
-      for (const r of this.rows) if (chromaOf(r.pitch) === chroma) counts.set(r.pitch.fifths, (counts.get(r.pitch.fifths) ?? 0) + 1);
-      const spellings = [...counts.entries()].map(([fifths, count]) => ({ pitch: pitchClass(fifths), count })).sort((x, y) => y.count - x.count);
-      return { chroma, spellings };
-    });
+    return [1, 3, 6, 8, 10].map((chroma) => ({ chroma, spellings: this.spellingsOf(chroma, () => true) }));
+  }
+
+  /** The spellings the notes of one key class took (those `counted`), most notes first. */
+  private spellingsOf(chroma: number, counted: (fifths: number) => boolean): Array<{ pitch: PitchClass; count: number }> {
+    const counts = new Map<number, number>();
+    for (const r of this.rows) if (chromaOf(r.pitch) === chroma && counted(r.pitch.fifths)) counts.set(r.pitch.fifths, (counts.get(r.pitch.fifths) ?? 0) + 1);
+    return [...counts.entries()].map(([fifths, count]) => ({ pitch: pitchClass(fifths), count })).sort((x, y) => y.count - x.count);
   }
 
   /** For each white key, how many notes took a spelling other than its own letter (E♯ 8, F♭ 2 …); keys spelled only as themselves are left out. */
   otherWhiteKeys(): Array<{ chroma: number; spellings: Array<{ pitch: PitchClass; count: number }> }> {
-    return [0, 2, 4, 5, 7, 9, 11]
-      .map((chroma) => {
-        const counts = new Map<number, number>();
-        for (const r of this.rows) if (chromaOf(r.pitch) === chroma && Math.abs(r.pitch.fifths - 2) > 3) counts.set(r.pitch.fifths, (counts.get(r.pitch.fifths) ?? 0) + 1);
-        const spellings = [...counts.entries()].map(([fifths, count]) => ({ pitch: pitchClass(fifths), count })).sort((x, y) => y.count - x.count);
-        return { chroma, spellings };
-      })
-      .filter((w) => w.spellings.length > 0);
+    // The naturals lie at F…B, −1…5 on the line of fifths.
+    return [0, 2, 4, 5, 7, 9, 11].map((chroma) => ({ chroma, spellings: this.spellingsOf(chroma, (fifths) => Math.abs(fifths - 2) > 3) })).filter((w) => w.spellings.length > 0);
   }
 
   wolfList(): WolfCount[] {

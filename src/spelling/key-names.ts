@@ -38,7 +38,7 @@ const MAX_DECLARED_SIGNATURE = 11;
 const REMOTE_KEY = 4;
 /**
  * With no key declared, keys past seven sharps (up to `MAX_FAR_SIGNATURE`) are named when the
- * music's region (the key's window centre averaged over time, halving every `REGION_HALF_LIFE_MS`)
+ * music's region (the key's window centre averaged over time, halving every `REGION_HALF_LIFE_MS` in follow.ts)
  * lies at `SHARP_REGION` or beyond on the line of fifths (F♯ major, G♯ minor and sharper) and the
  * key lies within `SHARP_REACH` fifths of the one in force: a piece in C♯ major names its mediant
  * E♯ minor and its V/vi D♯ major, as keyboard music in the sharpest keys writes them (common
@@ -67,6 +67,11 @@ const DOMINANT_SHARE = 0.3;
 /** The flattest fifth of a key's diatonic set: major's tonic less one fifth, minor's less four (as keySignatureOf). */
 export function signatureOf(key: Key): number {
   return key.tonic - (key.mode === 'major' ? 1 : 4);
+}
+
+/** How many sharps or flats the key's signature has. */
+export function accidentalsOf(key: Key): number {
+  return Math.abs(signatureOf(key) + 1);
 }
 
 /** The centre on the line of fifths of the key's window (as keyWindow: C major E♭..G♯, 2.5; A minor B♭..D♯, 3.5). */
@@ -119,7 +124,7 @@ export function nameKey(tonicChroma: number, mode: Key['mode'], at: NamingContex
   let bestCost = Infinity;
   for (let tonic = base - 24; tonic <= base + 24; tonic += 12) {
     const key: Key = { tonic, mode };
-    const accidentals = Math.abs(signatureOf(key) + 1);
+    const accidentals = accidentalsOf(key);
     const beyond = Math.max(0, accidentals - MAX_SIGNATURE);
     if (beyond > 0 && !mayGoBeyond(key, accidentals, at)) continue;
     const cost = Math.abs(windowCentreOf(key) - from) + BEYOND_COST * beyond + 1e-3 * Math.abs(windowCentreOf(key) - at.namingCentre);
@@ -150,7 +155,7 @@ export function tonicNearest(key: Key, centre: number): number {
   for (let tonic = key.tonic - 24; tonic <= key.tonic + 24; tonic += 12) {
     const other: Key = { tonic, mode: key.mode };
     const distance = Math.abs(windowCentreOf(other) - centre);
-    if (Math.abs(signatureOf(other) + 1) <= MAX_SIGNATURE && distance < bestDistance) {
+    if (accidentalsOf(other) <= MAX_SIGNATURE && distance < bestDistance) {
       best = tonic;
       bestDistance = distance;
     }
@@ -184,8 +189,8 @@ export class HomeKey {
     const named = nameKey(home % 12, home < 12 ? 'major' : 'minor', at);
     const shift = tonicNearest(named, at.namingCentre) - named.tonic;
     if (shift === 0) return 0;
-    if (Math.abs(signatureOf({ tonic: at.current.tonic + shift, mode: at.current.mode }) + 1) > MAX_SIGNATURE) return 0;
-    if (Math.abs(signatureOf(named) + 1) === MAX_SIGNATURE + 1) {
+    if (accidentalsOf({ tonic: at.current.tonic + shift, mode: at.current.mode }) > MAX_SIGNATURE) return 0;
+    if (accidentalsOf(named) === MAX_SIGNATURE + 1) {
       const below = chromaAt(named.tonic - 1);
       if (Math.max(this.counts[below]!, this.counts[below + 12]!) >= DOMINANT_SHARE * this.counts[home]!) return 0;
     }
